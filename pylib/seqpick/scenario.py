@@ -355,7 +355,7 @@ def integer(value: Any, path: str, *, low: int, high: int) -> int:
 def obj(value: Any, path: str, allowed_keys: tuple[str, ...]) -> Mapping[str, Any]:
     """Validate a JSON object whose keys are all in ``allowed_keys``."""
     if not isinstance(value, Mapping):
-        raise ScenarioError(path, f"got {_shown(value)}; expected an object")
+        raise ScenarioError(path or "scenario", f"got {_shown(value)}; expected an object")
     for key in value:
         if key not in allowed_keys:
             where = f"{path}.{key}" if path else str(key)
