@@ -526,7 +526,7 @@ def parse_scenario(raw: Any) -> Scenario:
     if version != SCENARIO_VERSION or isinstance(version, bool):
         raise ScenarioError("version", f"got {_shown(version)}; this engine reads version "
                                        f"{SCENARIO_VERSION}")
-    title = d.get("title")
+    title = d.get("title") or None
     if title is not None and (not isinstance(title, str) or len(title) > MAX_TITLE):
         raise ScenarioError("title", f"expected text of at most {MAX_TITLE} characters")
     if "pool" not in d:
