@@ -156,6 +156,12 @@ class Policy:
     start_share: float | None = None
     start_time: float | None = None
     interval: bool = True
+    #: Time windows: for arrival number k (key ``str(k)``), the earliest time
+    #: (window units from the start) at which it gets an offer if best so far.
+    time_thresholds: dict[str, float] | None = None
+    #: Scores, several openings: for openings left r (key ``str(r)``), the score
+    #: bar per stage (None = take anyone), as ``score_thresholds`` is for all open.
+    score_thresholds_by_openings_left: dict[str, list[float | None]] | None = None
 
 
 @dataclass
