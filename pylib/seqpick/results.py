@@ -47,6 +47,8 @@ def _clean(x: Any) -> Any:
     if isinstance(x, (list, tuple)):
         if x and all(type(v) is int for v in x):
             return list(x)  # fast path for long per-stage tables
+        if x and all(type(v) is float for v in x) and all(map(math.isfinite, x)):
+            return list(x)  # fast path for long lists of numbers
         return [_clean(v) for v in x]
     if isinstance(x, float):
         if math.isnan(x) or math.isinf(x):
