@@ -1,0 +1,181 @@
+"""The prior over the pool size N for the relative-rank engine.
+
+``pool_prior(pool)`` turns a validated pool into a list ``prior`` with
+``prior[n] = P(N = n)`` for ``n = 0..M`` (``M = pool.max_size``), summing to 1:
+
+=================  ==========================================================
+pool form          prior
+=================  ==========================================================
+``size``           all mass on ``n = size``
+``size_min/max``   uniform on ``size_min..size_max`` (Presman & Sonin 1972)
+``size_mean``      Poisson(mean), cut at ``M`` and renormalised (see below)
+``size_weights``   ``P(N = n)`` proportional to ``weights[n-1]``, n = 1..M
+=================  ==========================================================
+
+Poisson truncation: :attr:`seqpick.scenario.PoissonPool.max_size` is
+``ceil(mean + 12 sqrt(mean) + 40)``; the Poisson mass above it is below 1e-16
+for every allowed mean (at least 12 standard deviations and 40 counts above
+the mean).  That tail is dropped and the rest renormalised to sum to 1, so
+every number computed from the prior is exact for the truncated prior, which
+differs from the untruncated one by less than 1e-16 in total variation.
+Entries below about 1e-308 underflow to 0 (their true value is smaller still).
+
+``survival(prior)`` gives ``S[i] = P(N >= i)`` for ``i = 0..M+1``, summed
+from the top (small terms first, so every tail keeps its relative precision).
+
+Complexity: O(M) time and memory for every function here.
+
+References
+----------
+Presman, E. L. & Sonin, I. M. (1972). The best choice problem for a random
+number of objects. *Theory Probab. Appl.* 17, 657-668.
+Loader, C. (2000). Fast and accurate computation of binomial probabilities.
+Technical note, AT&T Labs (saddle-point form of the Poisson pmf).
+"""
+
+from __future__ import annotations
+
+import math
+
+from .errors import ScenarioError
+from .scenario import FixedPool, PoissonPool, Pool, RangePool, WeightsPool
+
+__all__ = ["poisson_pmf", "pool_prior", "survival", "suffix_sums", "prior_mean",
+           "single_size"]
+
+
+_HALF_LOG_2PI = 0.5 * math.log(2.0 * math.pi)
+
+
+def _stirlerr(n: int) -> float:
+    """log(n!) - (n + 1/2) log n + n - log(sqrt(2 pi)), n >= 1 (Loader 2000)."""
+    if n <= 15:
+        return math.lgamma(n + 1.0) - (n + 0.5) * math.log(n) + n - _HALF_LOG_2PI
+    x = 1.0 / n
+    x2 = x * x
+    return x * (1.0 / 12 - x2 * (1.0 / 360 - x2 * (1.0 / 1260 - x2 * (1.0 / 1680
+                                                                     - x2 / 1188))))
+
+
+def _bd0(x: float, mu: float) -> float:
+    """x log(x/mu) + mu - x without cancellation (Loader 2000)."""
+    if abs(x - mu) < 0.1 * (x + mu):
+        v = (x - mu) / (x + mu)
+        s = (x - mu) * v
+        ej = 2.0 * x * v
+        v2 = v * v
+        j = 1
+        while True:
+            ej *= v2
+            s1 = s + ej / (2 * j + 1)
+            if s1 == s:
+                return s1
+            s = s1
+            j += 1
+    return x * math.log(x / mu) + mu - x
+
+
+def poisson_pmf(mean: float, max_n: int, *, normalise: bool = False) -> list[float]:
+    """P(N = n) for n = 0..max_n, N ~ Poisson(mean), mean > 0.  O(max_n).
+
+    Stable for any mean: the value at the mode ``floor(mean)`` comes from the
+    saddle-point form ``exp(-stirlerr(x) - bd0(x, mean)) / sqrt(2 pi x)``
+    (Loader 2000; relative error about 1e-15 at any size, where a plain
+    ``lgamma`` difference loses ~1e-16 * mean), the others from the exact
+    ratios ``p(n+1) = p(n) * mean / (n+1)`` walking up and
+    ``p(n-1) = p(n) * n / mean`` walking down -- no overflow, no big
+    factorial.  Values below ~1e-308 underflow to 0.
+
+    With ``normalise=True`` the list is divided by its sum (the truncated
+    tail above ``max_n`` is dropped); otherwise the raw pmf values are
+    returned.
+
+    References
+    ----------
+    Loader, C. (2000). Fast and accurate computation of binomial
+    probabilities. Technical note, AT&T Labs (the ``stirlerr``/``bd0`` form
+    used by R and SciPy).
+    """
+    if not (mean > 0.0) or not math.isfinite(mean):
+        raise ValueError("poisson_pmf needs a finite mean > 0")
+    if max_n < 0:
+        raise ValueError("poisson_pmf needs max_n >= 0")
+    out = [0.0] * (max_n + 1)
+    mode = min(int(math.floor(mean)), max_n)
+    if mode == 0:
+        out[0] = math.exp(-mean)
+    else:
+        out[mode] = (math.exp(-_stirlerr(mode) - _bd0(float(mode), mean))
+                     / math.sqrt(2.0 * math.pi * mode))
+    v = out[mode]
+    for n in range(mode, max_n):
+        v *= mean / (n + 1)
+        out[n + 1] = v
+    v = out[mode]
+    for n in range(mode, 0, -1):
+        v *= n / mean
+        out[n - 1] = v
+        if v == 0.0:
+            break
+    if normalise:
+        total = math.fsum(out)
+        out = [x / total for x in out]
+    return out
+
+
+def pool_prior(pool: Pool) -> list[float]:
+    """``prior[n] = P(N = n)`` for n = 0..pool.max_size, summing to 1.  O(M).
+
+    Raises
+    ------
+    ScenarioError
+        on ``pool`` for a form that has no size prior (time windows, chances).
+    """
+    m = pool.max_size
+    if isinstance(pool, FixedPool):
+        prior = [0.0] * (m + 1)
+        prior[m] = 1.0
+        return prior
+    if isinstance(pool, RangePool):
+        lo, hi = pool.size_min, pool.size_max
+        prior = [0.0] * (hi + 1)
+        w = 1.0 / (hi - lo + 1)
+        for n in range(lo, hi + 1):
+            prior[n] = w
+        return prior
+    if isinstance(pool, PoissonPool):
+        return poisson_pmf(pool.size_mean, m, normalise=True)
+    if isinstance(pool, WeightsPool):
+        w = [0.0] + [float(x) for x in pool.weights[:m]]
+        total = math.fsum(w)
+        return [x / total for x in w]
+    raise ScenarioError("pool", f"the {getattr(pool, 'kind', '?')} pool form has no "
+                                "size prior for the relative-rank engine")
+
+
+def suffix_sums(values: list[float]) -> list[float]:
+    """``out[i] = sum(values[i:])`` for i = 0..len, summed from the top.  O(len)."""
+    out = [0.0] * (len(values) + 1)
+    acc = 0.0
+    for i in range(len(values) - 1, -1, -1):
+        acc += values[i]
+        out[i] = acc
+    return out
+
+
+def survival(prior: list[float]) -> list[float]:
+    """``S[i] = P(N >= i)`` for i = 0..M+1 (``S[0] = 1``, ``S[M+1] = 0``).  O(M)."""
+    s = suffix_sums(prior)
+    s[0] = 1.0 if s[0] > 0 else 0.0
+    return s
+
+
+def prior_mean(prior: list[float]) -> float:
+    """E[N].  O(M)."""
+    return math.fsum(n * w for n, w in enumerate(prior))
+
+
+def single_size(prior: list[float]) -> int | None:
+    """The pool size if the prior puts all its mass on one size, else None."""
+    support = [n for n, w in enumerate(prior) if w > 0.0]
+    return support[0] if len(support) == 1 else None
