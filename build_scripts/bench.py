@@ -158,7 +158,7 @@ w.onmessage = (e) => { document.body.dataset.ready = String(e.data); };"""
 BARE_WORKER = """import {loadPyodide} from './pyodide/pyodide.mjs';
 const info = await (await fetch('./build-info.json')).json();
 const py = await loadPyodide({indexURL: new URL('./pyodide/', import.meta.url).href,
-  lockFileContents: JSON.stringify({info: info.lock_info || info.pyodide_lock_info || info.info, packages: {}})});
+  lockFileContents: {info: info.pyodide_lock_info, packages: {}}});
 py.runPython('1+1');
 postMessage(performance.timeOrigin + performance.now());"""
 
@@ -202,17 +202,17 @@ def browser_table(runs: int) -> None:
             ctx = browser.new_context()
             page = ctx.new_page()
             page.goto(url + "bare.html")
-            page.wait_for_function("document.body.dataset.ready", timeout=60_000)
+            page.wait_for_function("() => document.body.dataset.ready", timeout=60_000)
             bare.append(page.evaluate("Number(document.body.dataset.ready) - performance.timeOrigin") / 1000)
             ctx.close()
             ctx = browser.new_context()
             page = ctx.new_page()
             page.goto(url)
             page.wait_for_function(
-                "(() => { const s = document.querySelector('[aria-label=\"Plan summary\"]');"
-                " return s && /\\d%/.test(s.textContent); })()", timeout=60_000)
+                "() => { const s = document.querySelector('[aria-label=\"Plan summary\"]');"
+                " return s && /\\d%/.test(s.textContent); }", timeout=60_000)
             first.append(page.evaluate("performance.now()") / 1000)
-            page.wait_for_function("document.documentElement.dataset.engine === 'ready'",
+            page.wait_for_function("() => document.documentElement.dataset.engine === 'ready'",
                                    timeout=60_000)
             live.append(page.evaluate(
                 "Number(document.documentElement.dataset.engineReadyAt || performance.now())")
@@ -226,7 +226,7 @@ def browser_table(runs: int) -> None:
             browser_solve.append(ms / 1000)
             page.reload()
             t0 = time.perf_counter()
-            page.wait_for_function("document.documentElement.dataset.engine === 'ready'",
+            page.wait_for_function("() => document.documentElement.dataset.engine === 'ready'",
                                    timeout=60_000)
             repeat_visit.append(time.perf_counter() - t0 + page.evaluate(
                 "performance.getEntriesByType('navigation')[0]?.responseStart || 0") / 1000)

@@ -69,7 +69,7 @@ def timed(sc: dict, repeat: int) -> tuple[float, float, str]:
     best_cpu = best_wall = float("inf")
     extras = ""
     for _ in range(repeat):
-        rankdp._plan_for_key.cache_clear()
+        rankdp._plan_cache_clear()
         c0, w0 = time.process_time(), time.perf_counter()
         res = solve(sc)
         res.to_dict()
@@ -84,7 +84,7 @@ def timed_core(sc: dict, repeat: int) -> float:
     """CPU seconds of the DP plus the exact evaluation of the optimal rule only."""
     best = float("inf")
     for _ in range(repeat):
-        rankdp._plan_for_key.cache_clear()
+        rankdp._plan_cache_clear()
         s = parse_scenario(sc)
         c0 = time.process_time()
         plan = rankdp._plan(s)

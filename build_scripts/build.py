@@ -12,7 +12,11 @@ What ends up in dist/site/:
     PYODIDE_INTEGRITY (a changed or tampered tarball fails the build);
   * wheels/   - the ``seqpick`` wheel, built here from pylib/ with zipfile
     (pure Python, deterministic, no network, no build backend needed);
-  * vendor/   - files of the npm packages listed in VENDOR_NPM (none yet);
+  * vendor/   - files of the npm packages listed in VENDOR_NPM (uPlot, for
+    the charts); VENDOR_NPM_TESTS (axe-core) is for the tests only and is
+    never copied here (see vendor_for_tests());
+  * sw.js     - the service worker, with the precache manifest of the
+    finished site (every other file and its sha256) written into it last;
   * build-info.json - what the engine worker needs to boot: wheel name and
     URL, the wheel's sha256 (content hash, no build time in it, so the URL
     changes exactly when the code does), Pyodide's version and the ``info``
@@ -75,7 +79,23 @@ PYODIDE_LOCK = "pyodide-lock.json"
 # package]). Example:
 #   ("some-lib", "1.2.3", "sha512-...", ["dist/some-lib.min.js"]),
 # The page then loads "./vendor/some-lib/dist/some-lib.min.js".
-VENDOR_NPM: list[tuple[str, str, str, list[str]]] = []
+VENDOR_NPM: list[tuple[str, str, str, list[str]]] = [
+    # uPlot (MIT): canvas charts, an ES module; sets element.style via CSSOM
+    # only (no <style> tags, no style="" strings, no eval), so it runs under
+    # the site's policy. Its stylesheet is a separate file, linked by index.html.
+    ("uplot", "1.6.32",
+     "sha512-KIMVnG68zvu5XXUbC4LQEPnhwOxBuLyW1AHtpm6IKTXImkbLgkMy+jabjLgSLMasNuGGzQm/ep3tOkyTxpiQIw==",
+     ["dist/uPlot.esm.js", "dist/uPlot.min.css", "LICENSE"]),
+]
+
+# The same, for the tests only: never copied into dist/site/. vendor_for_tests()
+# fetches and verifies them the same way and returns their paths under .cache/.
+VENDOR_NPM_TESTS: list[tuple[str, str, str, list[str]]] = [
+    # axe-core (MPL-2.0): accessibility rules, injected by tests/e2e/test_accessibility.py.
+    ("axe-core", "4.14.1",
+     "sha512-FHfa+lmNjQZfJz1q8wKqIDwC6DExcHt/pkjNQb09a3NPjCKg2rhu5qb2S4r76ASyFNNtuFooJpZe37OgudVGtQ==",
+     ["axe.min.js", "LICENSE"]),
+]
 
 PACK_CACHE = CACHE_DIR / "npm"
 
@@ -222,6 +242,17 @@ def vendor_npm(
     return plan
 
 
+def vendor_for_tests(
+    entries: Iterable[tuple[str, str, str, list[str]]] = VENDOR_NPM_TESTS,
+    cache_dir: Path = PACK_CACHE,
+    pack: PackFn = npm_pack,
+) -> dict[str, Path]:
+    """Fetch, verify and extract the test-only npm files (VENDOR_NPM_TESTS)
+    under .cache/ and return {"<package>/<file>": path}. Nothing of it goes
+    into dist/site/."""
+    return {k.removeprefix("vendor/"): v for k, v in vendor_npm(entries, cache_dir, pack).items()}
+
+
 # --- the project's wheel -----------------------------------------------------
 
 
@@ -324,16 +355,152 @@ def inject_csp_meta(html: str, policy: str = CSP_META) -> str:
     return html[: m.end()] + tag + html[m.end() :]
 
 
-def prerender(site_dir: Path) -> None:
-    """Hook, run on dist/site/ after every build; a no-op for now.
+DEMO_SCENARIO_FILE = "demo-scenario.json"
+PRERENDER_ID = "prerendered-plan"
+_PRERENDER_RE = re.compile(
+    r"[ \t]*<script\s+type=\"application/json\"\s+id=\"" + PRERENDER_ID + r"\">.*?</script>[ \t]*\n?", re.S
+)
+_HEAD_END_RE = re.compile(r"</head\s*>", re.I)
 
-    A later change will compute the default scenario's answer with CPython
-    (importing seqpick from pylib/) and write it into site_dir/index.html,
-    so the page shows a real answer before Pyodide has booted. Keep it
-    idempotent: the build calls it each time, after the sync step has
-    restored index.html from site/.
+
+def _engine():
+    """The seqpick package of this checkout (pylib/), never an installed copy."""
+    if str(PYLIB) not in sys.path:
+        sys.path.insert(0, str(PYLIB))
+    import seqpick
+    from seqpick.link import encode_fragment
+    from seqpick.scenario import parse_scenario
+    from seqpick.solve import solve
+
+    where = Path(seqpick.__file__).resolve()
+    if PYLIB.resolve() not in where.parents:
+        raise BuildError(f"prerender must use the engine in {PYLIB}, but seqpick was imported from {where}")
+    return parse_scenario, solve, encode_fragment
+
+
+def _same_json(a, b) -> bool:
+    """Equal as JSON values (1 == 1.0, but True != 1)."""
+    if isinstance(a, bool) or isinstance(b, bool):
+        return a is b
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
+        return a == b
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(_same_json(a[k], b[k]) for k in a)
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(_same_json(x, y) for x, y in zip(a, b))
+    return type(a) is type(b) and a == b
+
+
+def script_json(obj) -> str:
+    """JSON for the inside of an HTML <script> element: '<', '>' and '&' are
+    written as \\u escapes (valid JSON, the same value), so no '</script>' or
+    '<!--' can end or confuse the element whatever the strings hold."""
+    text = json.dumps(obj, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
+    return (text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+            .replace("\u2028", "\\u2028").replace("\u2029", "\\u2029"))
+
+
+def prerender(site_dir: Path) -> None:
+    """Work out the demo plan with CPython and write it into index.html.
+
+    Runs on dist/site/ after every build. Reads the demo scenario from
+    site_dir/demo-scenario.json (its one source: the page's state.js takes it
+    from the block written here, or fetches the same file when unbuilt),
+    solves it with the seqpick engine of this checkout (pylib/) and puts
+
+        <script type="application/json" id="prerendered-plan">
+          {"scenario": <the demo scenario>, "fragment": <its share-link fragment>,
+           "result": <SolveResult.to_dict()>}
+        </script>
+
+    at the end of <head>, so the page shows a real answer before Pyodide has
+    booted (site/js/app.js). The scenario must be canonical (what
+    parse_scenario(...).to_dict() gives, as the page sends it), or the page's
+    request would not match it. Idempotent: an existing block is replaced.
+    Cost: one solve of the demo (milliseconds).
     """
-    return None
+    index = site_dir / "index.html"
+    demo_path = site_dir / DEMO_SCENARIO_FILE
+    if not demo_path.is_file():
+        raise BuildError(f"{DEMO_SCENARIO_FILE} is missing from {site_dir}: the page's demo scenario lives there")
+    try:
+        demo = json.loads(demo_path.read_text(encoding="utf-8"))
+    except ValueError as exc:
+        raise BuildError(f"{DEMO_SCENARIO_FILE} is not valid JSON: {exc}") from None
+
+    parse_scenario, solve, encode_fragment = _engine()
+    try:
+        canonical = parse_scenario(demo).to_dict()
+        result = solve(demo).to_dict()
+        fragment = encode_fragment(demo)
+    except Exception as exc:  # ScenarioError names the field
+        raise BuildError(f"{DEMO_SCENARIO_FILE} cannot be solved: {exc}") from None
+    if not _same_json(canonical, demo):
+        raise BuildError(
+            f"{DEMO_SCENARIO_FILE} must list every field as the page sends it; the engine's "
+            f"canonical form is {json.dumps(canonical)}"
+        )
+
+    block = (f'<script type="application/json" id="{PRERENDER_ID}">'
+             f"{script_json({'scenario': demo, 'fragment': fragment, 'result': result})}</script>\n")
+    html = _PRERENDER_RE.sub("", index.read_text(encoding="utf-8"))
+    m = _HEAD_END_RE.search(html)
+    if m is None:
+        raise BuildError("index.html has no </head> to put the prerendered plan before")
+    new = html[: m.start()] + block + html[m.start() :]
+    if index.read_bytes() != new.encode("utf-8"):
+        tmp = index.with_name(index.name + ".tmp")
+        tmp.write_text(new, encoding="utf-8")
+        os.replace(tmp, index)
+    log(f"prerendered the demo plan into index.html ({len(block) / 1e3:.1f} kB)")
+
+
+# --- offline: the service worker's precache list -------------------------------
+
+SERVICE_WORKER = "sw.js"
+# site/sw.js holds `/*PRECACHE*/ {...} /*END PRECACHE*/`; the build replaces
+# what is between the markers with the manifest of the built site.
+_PRECACHE_RE = re.compile(r"/\*PRECACHE\*/.*?/\*END PRECACHE\*/", re.S)
+
+
+def precache_manifest(site_dir: Path, skip: Iterable[str] = (SERVICE_WORKER,)) -> dict:
+    """{"version": v, "files": {relative path: sha256 hex}} for every file
+    under *site_dir* except *skip*. ``v`` is a hash of the sorted
+    (path, hash) list, so it changes exactly when a file is added, removed,
+    renamed or changed. O(total bytes)."""
+    skipped = set(skip)
+    files: dict[str, str] = {}
+    for path in sorted(site_dir.rglob("*")):
+        rel = path.relative_to(site_dir).as_posix()
+        if path.is_file() and rel not in skipped:
+            h = hashlib.sha256()
+            with open(path, "rb") as fh:
+                for block in iter(lambda: fh.read(1 << 20), b""):
+                    h.update(block)
+            files[rel] = h.hexdigest()
+    listing = "".join(f"{rel}\0{sha}\n" for rel, sha in sorted(files.items()))
+    return {"version": sha256_hex(listing.encode())[:20], "files": files}
+
+
+def inject_precache(site_dir: Path) -> dict | None:
+    """Write the precache manifest of *site_dir* into its sw.js (after the
+    prerender step, so it lists the files as they are served). A new manifest
+    makes sw.js differ byte for byte, which is what makes browsers install
+    the new service worker. Returns the manifest, or None without sw.js."""
+    sw = site_dir / SERVICE_WORKER
+    if not sw.is_file():
+        return None
+    manifest = precache_manifest(site_dir)
+    text = sw.read_text(encoding="utf-8")
+    if len(_PRECACHE_RE.findall(text)) != 1:
+        raise BuildError(f"{SERVICE_WORKER} must hold exactly one /*PRECACHE*/ ... /*END PRECACHE*/ block")
+    block = "/*PRECACHE*/ " + json.dumps(manifest, sort_keys=True, separators=(",", ":")) + " /*END PRECACHE*/"
+    new = _PRECACHE_RE.sub(lambda _: block, text)
+    if new != text:
+        tmp = sw.with_name(sw.name + ".tmp")
+        tmp.write_text(new, encoding="utf-8")
+        os.replace(tmp, sw)
+    return manifest
 
 
 # --- sync the plan to dist/site ------------------------------------------------
@@ -458,6 +625,9 @@ def build(dist: Path = DIST_SITE, clean: bool = False) -> SyncReport:
 
     report = sync_tree(dist, plan)
     prerender(dist)
+    manifest = inject_precache(dist)  # last: it hashes the files as served
+    if manifest:
+        log(f"precache: {len(manifest['files'])} files, version {manifest['version']}")
 
     shown = report.written if len(report.written) <= 8 else report.written[:8] + ["..."]
     log(

@@ -8,6 +8,7 @@
 2. find Chromium: $SEQPICK_CHROMIUM, else `chromium` on PATH, else (as root
    with apt-get) Debian's package `chromium`, else Playwright's own download
    (`python -m playwright install chromium`, for machines with open internet);
+   and pdftotext (Debian's `poppler-utils`, the same way) for the print test;
 3. build the site (build_scripts/build.py);
 4. `python -m pytest [arguments]` (tests/ by default), with the browser's
    path in SEQPICK_CHROMIUM. Exits with pytest's status, except that
@@ -131,6 +132,22 @@ def find_browser() -> str:
     raise AssertionError  # unreachable
 
 
+def ensure_pdftotext() -> None:
+    """pdftotext (Debian's poppler-utils) reads the printed plan's PDF in
+    tests/e2e/test_share_export.py; installed like chromium (as root with
+    apt-get) when missing. Without it that check is skipped, not failed."""
+    if shutil.which("pdftotext"):
+        return
+    is_root = hasattr(os, "geteuid") and os.geteuid() == 0
+    if not (is_root and shutil.which("apt-get")):
+        say("pdftotext: not found and cannot be installed here; the PDF text check will be skipped")
+        return
+    say("pdftotext: installing Debian's poppler-utils with apt-get")
+    env = dict(os.environ, DEBIAN_FRONTEND="noninteractive")
+    run_quiet(["apt-get", "update", "-qq"], "apt-get update", env)
+    run_quiet(["apt-get", "install", "-y", "-qq", "poppler-utils"], "apt-get install poppler-utils", env)
+
+
 # --- 3 and 4 --------------------------------------------------------------------
 
 
@@ -138,6 +155,7 @@ def main(argv: list[str]) -> int:
     install()
     browser = find_browser()
     say(f"browser: {browser}")
+    ensure_pdftotext()
 
     build = subprocess.run([sys.executable, str(ROOT / "build_scripts" / "build.py")], cwd=ROOT)
     if build.returncode != 0:

@@ -14,8 +14,12 @@ The request format (a list of seen candidates, oldest first)::
     {"score": 71.5}                       # when the scenario has scores
     {"relative_rank": 1, "label": "A. N.", "offered": true, "declined": true}
     {"relative_rank": 1, "time": 3.25}    # time windows: arrival time
+    {"event": false}                      # chances per stage: did the event happen?
 
 ``offered`` without ``declined`` means the offer was accepted (a hire).
+With a chances pool, ``event`` (true or false) says whether the stage's event
+happened; ``relative_rank`` is accepted there too (1 = the event happened),
+but the first stage can show "no event" only with ``event``.
 
 Each solver module provides ``advise_<model>(scenario, state)`` returning an
 :class:`Advice`; this module parses the request and dispatches.
@@ -34,6 +38,7 @@ from .scenario import (MAX_SIZE, ChancesPool, FixedPool, Scenario, WindowPool, n
 __all__ = ["SeenEntry", "SearchState", "Advice", "parse_seen", "advise", "advise_request"]
 
 MAX_LABEL = 200
+_SEEN_KEYS = ("relative_rank", "score", "label", "offered", "declined", "time")
 
 
 @dataclass(frozen=True)
@@ -46,6 +51,7 @@ class SeenEntry:
     offered: bool = False
     declined: bool = False
     time: float | None = None
+    event: bool | None = None  # chances pools: whether the stage's event happened
 
     @property
     def hired(self) -> bool:
@@ -113,21 +119,33 @@ def parse_seen(raw: Any, s: Scenario) -> SearchState:
     last_time = 0.0
     for i, item in enumerate(raw):
         path = f"seen.{i}"
-        d = obj(item, path, ("relative_rank", "score", "label", "offered", "declined", "time"))
-        rr = sc = t = None
+        d = obj(item, path, _SEEN_KEYS + (("event",) if isinstance(s.pool, ChancesPool) else ()))
+        rr = sc = t = ev = None
         if s.scores is None:
             if "score" in d:
                 raise ScenarioError(f"{path}.score", "this scenario has no scores; give "
                                                      "relative_rank instead")
-            if "relative_rank" not in d:
+            if "event" in d:
+                ev = d["event"]
+                if not isinstance(ev, bool):
+                    raise ScenarioError(f"{path}.event", f"got {ev!r}; expected true or false")
+            if "relative_rank" not in d and ev is None:
+                if isinstance(s.pool, ChancesPool):
+                    raise ScenarioError(f"{path}.event", "missing; expected true or false "
+                                        "(or relative_rank, 1 = the event happened)")
                 raise ScenarioError(f"{path}.relative_rank", f"missing; expected a whole "
                                     f"number from 1 (best so far) to {i + 1}")
-            v = d["relative_rank"]
-            if isinstance(v, bool) or not isinstance(v, (int, float)) or v != int(v) \
-                    or not 1 <= v <= i + 1:
-                raise ScenarioError(f"{path}.relative_rank", f"got {v!r}; expected a whole "
-                                    f"number from 1 (best so far) to {i + 1}")
-            rr = int(v)
+            if "relative_rank" in d:
+                v = d["relative_rank"]
+                if isinstance(v, bool) or not isinstance(v, (int, float)) or v != int(v) \
+                        or not 1 <= v <= i + 1:
+                    raise ScenarioError(f"{path}.relative_rank", f"got {v!r}; expected a "
+                                        f"whole number from 1 (best so far) to {i + 1}")
+                rr = int(v)
+                if ev is not None and ev != (rr == 1):
+                    raise ScenarioError(f"{path}.event", f"got {ev!r}, but relative_rank {rr} "
+                                        "says the opposite (1 = the event happened); give one "
+                                        "of them")
         else:
             if "relative_rank" in d:
                 raise ScenarioError(f"{path}.relative_rank", "this scenario has scores; "
@@ -165,7 +183,7 @@ def parse_seen(raw: Any, s: Scenario) -> SearchState:
             best_before = best_score
         if sc is not None:
             best_score = sc if best_score is None else max(best_score, sc)
-        entries.append(SeenEntry(rr, sc, label, offered, declined, t))
+        entries.append(SeenEntry(rr, sc, label, offered, declined, t, ev))
     return SearchState(seen=tuple(entries), stage=len(entries), hires=hires,
                        openings_left=s.openings - hires, newest=entries[-1],
                        best_score_before=best_before)

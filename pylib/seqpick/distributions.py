@@ -32,6 +32,9 @@ Three families:
     scores sits at height (k - 1/2)/n.  Tied scores share one knot at the
     middle of their block (height (below + count/2)/n), which is the
     mid-distribution function and reduces to Hazen's positions without ties.
+    Scores closer than :data:`TIE_TOL` x max(1, |score|) to the first score of
+    a tie block count as tied (closer knots cannot be told apart by the
+    interpolated quantiles in double precision).
     The CDF rises linearly from 0 at ``min - g/2`` to the first knot and from
     the last knot to 1 at ``max + g/2``, where g = (max - min)/(K - 1) is the
     average gap between the K distinct scores ("common practice": a short
@@ -73,6 +76,7 @@ from .scenario import Scores
 
 __all__ = [
     "SMALL_SAMPLE",
+    "TIE_TOL",
     "ScoreDistribution",
     "Uniform",
     "Normal",
@@ -86,6 +90,8 @@ __all__ = [
 
 #: Fewer past scores than this give a warning.
 SMALL_SAMPLE = 30
+#: Past scores closer than this (relative to max(1, |score|)) are ties.
+TIE_TOL = 1e-6
 
 _SQRT2 = math.sqrt(2.0)
 _INV_SQRT2PI = 1.0 / math.sqrt(2.0 * math.pi)
@@ -211,6 +217,13 @@ class ScoreDistribution:
         """E[X; X > c] = psi(F(c))."""
         return self.tail_mean(self.cdf(c))
 
+    def upper_parts(self, c: float) -> tuple[float, float, float]:
+        """(P(X > c), E[X; X > c], E[(X - c)^+]) in one call (Moser's recursion
+        and its forward evaluation need all three at every stage)."""
+        u = self.cdf(c)
+        pab = self.tail_mean(u)
+        return 1.0 - u, pab, max(0.0, pab - c * (1.0 - u))
+
     @property
     def support(self) -> tuple[float, float]:  # pragma: no cover - abstract
         raise NotImplementedError
@@ -261,6 +274,10 @@ class Uniform(ScoreDistribution):
         d = self.high - c
         return d * d / (2.0 * self.width)
 
+    def upper_parts(self, c: float) -> tuple[float, float, float]:
+        u = self.cdf(c)
+        return 1.0 - u, self.tail_mean(u), self.excess(c)
+
     @property
     def support(self) -> tuple[float, float]:
         return (self.low, self.high)
@@ -297,6 +314,17 @@ class Normal(ScoreDistribution):
     def excess(self, c: float) -> float:
         return self.sd * _std_excess((c - self.mu) / self.sd)
 
+    def upper_parts(self, c: float) -> tuple[float, float, float]:
+        """One erfc and one exp: Q(z), phi(z) give all three (z = (c - mean)/sd);
+        the excess for z >= 5 by the continued fraction of :func:`_std_excess`."""
+        if c == -math.inf:
+            return 1.0, self.mu, math.inf
+        z = (c - self.mu) / self.sd
+        q = 0.5 * math.erfc(z / _SQRT2)
+        ph = _INV_SQRT2PI * math.exp(-0.5 * z * z)
+        ex = ph - z * q if z < 5.0 else _std_excess(z)
+        return q, self.mu * q + self.sd * ph, self.sd * ex
+
     @property
     def mean(self) -> float:
         return self.mu
@@ -323,7 +351,10 @@ class Sample(ScoreDistribution):
         distinct: list[float] = []
         counts: list[int] = []
         for v in vals:
-            if distinct and v == distinct[-1]:
+            # scores within TIE_TOL x max(1, |score|) of a tie group's first score
+            # count as the same score (below that, floats cannot resolve the
+            # interpolated quantiles)
+            if distinct and v - distinct[-1] <= TIE_TOL * max(1.0, abs(v)):
                 counts[-1] += 1
             else:
                 distinct.append(v)
@@ -396,6 +427,22 @@ class Sample(ScoreDistribution):
         part = (self.fs[i + 1] - u) * 0.5 * (xs[i + 1] - c)
         rest = self._psi_knots[i + 1] - c * (1.0 - self.fs[i + 1])
         return max(0.0, part + rest)
+
+    def upper_parts(self, c: float) -> tuple[float, float, float]:
+        """One bisection for all three (see :meth:`excess`)."""
+        xs, fs = self.xs, self.fs
+        if c <= xs[0]:
+            return 1.0, self.mean, self.mean - c
+        if c >= xs[-1]:
+            return 0.0, 0.0, 0.0
+        i = bisect.bisect_right(xs, c, 1, len(xs) - 1) - 1
+        x0, x1, f0, f1 = xs[i], xs[i + 1], fs[i], fs[i + 1]
+        u = f0 + (c - x0) / (x1 - x0) * (f1 - f0)
+        part = (f1 - u) * 0.5 * (x1 - c)
+        top = self._psi_knots[i + 1]
+        rest = top - c * (1.0 - f1)
+        pab = top + (f1 - u) * 0.5 * (c + x1)
+        return 1.0 - u, pab, max(0.0, part + rest)
 
     @property
     def mean(self) -> float:

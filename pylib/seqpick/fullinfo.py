@@ -51,10 +51,14 @@ passing V, with V the optimal value from maximum u; so offer iff u^k >= V.
 If u >= b_k >= b_{k-1}, V = R_k(u) <= u^k by (1).  If u < b_k, V >= R_k(u)
 > u^k since "offer to every later record" is one possible continuation.
 (This is the one-stage look-ahead argument for a monotone problem: Chow,
-Robbins & Siegmund 1971.)  b_k is found by Newton's method on (GM) in z,
-started from the extrapolated k z_k (which tends to c = 0.80435..., the root
-of int_0^c (e^t - 1)/t dt = 1); each evaluation sums the series up to the
-binomial cut-off below (about 19 terms): O(1) per k, O(N) for all bars.
+Robbins & Siegmund 1971.)  With w = k z_k and eps = 1/k, (GM) reads
+sum_y rho_y w^y/y! prod_{i<y} (1 - i eps) = 1, whose root w(eps) is analytic
+near eps = 0 (w(0) = c = 0.80435... for p = 1, the root of
+int_0^c (e^t - 1)/t dt = 1).  b_k is found by Newton's method for k < 24
+(24 max(1, w(0)) with declines) and, from there on, from the Taylor
+polynomial of w(eps) (degree <= 12, coefficients by Cauchy's integral on a
+circle, checked against Newton at two k; :func:`_w_taylor`), exact to
+rounding: O(1) per k, about 10 list passes for all N bars.
 
 *Exact performance* of any rule "offer to a best-so-far with quantile >=
 a_i at stage i" with non-increasing bars a_1 >= ... >= a_N (the optimal
@@ -81,7 +85,18 @@ Bin(K, 0.8/K), so the beta index y is cut where the binomial terms fall below
 chance of no hire, the interviews, the outcome split and the rank
 distribution.  (Narrow stage intervals -- u^(N-1) changes by less than e^0.5
 across -- use 3- or 6-point Gauss-Legendre on the small binomial kernel instead
-of the two tails of Bin(N, .); that is exact to rounding and much cheaper.)
+of the two tails of Bin(N, .); that is exact to rounding and much cheaper.  The
+width of such an interval is taken from the complements 1 - a, which keep
+their relative precision near 1.)  For the optimal bars the stage sums are
+not formed stage by stage: the contribution of the stage with K later
+candidates is an analytic function of a real K, and the Euler-Maclaurin
+summation formula in Gregory's form (the integral over K by Gauss-Legendre,
+plus end corrections from differences of exact stage values) gives the sum
+over K >= 24 from about 100 stage evaluations, exact to rounding (see the
+block comment before :func:`_em_points`); the last stages (K < 24, or
+< sqrt(10 w N) for N below about 1,500) and the first one are summed directly,
+and N < 200 is summed directly.  The skip rules have a single stage whose
+kernel falls like (K/(N-1))^y, so it is cut where that is below e^-52.
 The rank:
 the first offer has J ~ (the number of later candidates above it) better
 candidates; if it declines, the later records form the chain "next record is
@@ -108,7 +123,10 @@ These are smooth integrals over each stage's interval, done by 3- or
 e^0.5 (error below 1e-16 relative per piece; normal scores are integrated in
 z = Phi^-1(u), which is smooth out to the tails; sample scores are split at
 the kinks of psi).  This is a numerical integration, converged to rounding,
-not a closed form; the tests check it against scipy to 1e-13.  With
+not a closed form; the tests check it against scipy to 1e-13.  For the
+optimal bars the same summation formula sums the stages (in u for every
+distribution; sample scores only from the stage where the bars clear the top
+kink of psi, the stages below directly).  With
 declines the hire's score needs order statistics of the later candidates for
 every first offer, which has no closed form for normal or sample scores:
 ``expected_score`` is then None for goal best (the optimal rule), and for the
@@ -130,11 +148,21 @@ of Moser's problem; Derman, Lieberman & Ross 1972 "sequential stochastic
 assignment", from memory): V_{k,r} = -c + V_{k-1,r} + p E[(X - D)^+],
 D = V_{k-1,r} - V_{k-1,r-1}, V_{.,0} = V_{0,.} = 0; the bar is D; with
 must_hire the stages where every remaining candidate is needed take anyone.
-O(N m).  The chance that the hire is the overall best (one opening) is a
+O(N m), one evaluation of P(X > D), E[X; X > D] and E[(X - D)^+] together
+per stage and opening (:meth:`ScoreDistribution.upper_parts`), which the
+forward evaluation reuses (for one opening the chance of reaching each stage
+is a running product).  The chance that the hire is the overall best (one
+opening) is sum_i int_{a_i}^1 prod_{j<i} (u - p (u - a_j)^+) u^(N-i) du, a
 piecewise polynomial integral with no short form: it is computed exactly
-(Gauss-Legendre on the pieces between bars, Horner over the stages,
-O(N^2)) for N <= :data:`SCORE_BEST_MAX`, else None; the rank distribution of
-the goal-score rule is not computed (None).
+(Gauss-Legendre on the pieces between bars, Horner over the stages, O(N^2))
+for N <= :data:`SCORE_BEST_MAX`.  For larger N, and for several openings
+(where the best hire's rank needs the joint law of the hires), it is not
+computed: ``success_probability`` is None and ``outcome.best`` /
+``outcome.other`` are NaN (null in JSON; their sum 1 - none - forced_last is
+known, the split is not).  An O(N) exact form would need the product over
+earlier stages inside the integral handled like the stage sums of goal best;
+not done.  The rank distribution of the goal-score rule is not computed
+(None).
 
 Compared rules
 --------------
@@ -167,9 +195,13 @@ hire); ``p_no_hire`` is reported separately.  ``expected_interviews``
 counts the hire.  ``rank_distribution`` / ``top``: ranks 1..min(N, 200) of
 the hire (the best hire with several openings).
 
-Complexity (N candidates, m openings): goal best O(N x 19) plus about 3 N
-quadrature nodes for the expected score; goal score O(N m), plus O(N^2) for
-the chance of the best when N <= SCORE_BEST_MAX; each compared rule O(N).
+Complexity (N candidates, m openings): goal best O(N) list passes for the
+bars and the score thresholds (about 10, plus one erfc and one exp per stage
+for normal scores, :func:`_upper_z_chain`), and about 130 stage evaluations of
+O(19) each for every output including the expected score (O(N x 19) when N
+< 200); goal score O(N m), plus O(N^2) for the chance of the best when N <=
+SCORE_BEST_MAX; each compared rule O(N) (a skip rule: one stage of O(N) plus
+a kernel of about 50/log(1/share) terms).
 
 References
 ----------
@@ -189,7 +221,17 @@ Moscow (same limit; from memory).
 Derman, C., Lieberman, G. J. & Ross, S. M. (1972). A sequential stochastic
 assignment problem. *Management Science* 18, 349-355 (from memory).
 Abramowitz, M. & Stegun, I. A. (1964). *Handbook of Mathematical Functions*,
-6.6.4 and 26.5.24 (incomplete beta function and binomial tails).
+6.6.4 and 26.5.24 (incomplete beta function and binomial tails), 23.1.30
+(the Euler-Maclaurin summation formula).
+Hildebrand, F. B. (1956). *Introduction to Numerical Analysis.* McGraw-Hill,
+section 5.9 (Gregory's formula: the end corrections in differences; from
+memory).
+Trefethen, L. N. & Weideman, J. A. C. (2014). The exponentially convergent
+trapezoidal rule. *SIAM Review* 56, 385-458 (the error exp(-2 pi d) for
+functions analytic in a strip; from memory).
+Lyness, J. N. & Moler, C. B. (1967). Numerical differentiation of analytic
+functions. *SIAM J. Numer. Anal.* 4, 202-210 (Taylor coefficients from
+Cauchy's integral by the trapezoid rule; from memory).
 """
 
 from __future__ import annotations
@@ -198,8 +240,8 @@ import bisect
 import math
 from array import array
 from dataclasses import dataclass
-from itertools import accumulate, repeat
-from operator import add, mul
+from itertools import accumulate, compress, repeat
+from operator import add, lt, mul, sub, truediv
 from typing import Callable, Sequence
 
 from .advise import Advice, SearchState
@@ -207,7 +249,7 @@ from .distributions import (Normal, Sample, ScoreDistribution, Uniform, from_sco
                             norm_cdf, norm_pdf, norm_ppf, norm_sf)
 from .errors import ScenarioError
 from .results import (TOP_COUNTS, TOP_SHARES, Limit, Outcome, Policy, RankDistribution,
-                      RuleResult, SolveResult, group_thresholds)
+                      RuleResult, SolveResult, StageGroup)
 from .scenario import FixedPool, Scenario
 
 __all__ = [
@@ -233,6 +275,26 @@ OPENINGS_WORK_MAX = 2_000_000
 FULL_INFO_LIMIT = 0.5801642239
 _TOL = 1e-19          # binomial mass left out of a window
 _NEG = 1e-17          # quadrature truncation (relative)
+
+
+def _zero_one(a: Sequence[float]) -> bool:
+    """All bars are 0 or 1 (C-speed counts)."""
+    return a.count(1.0) + a.count(0.0) == len(a)  # type: ignore[attr-defined]
+
+
+def _live_stages(a: Sequence[float], ac: Sequence[float], t0: int, n: int) -> list[int]:
+    """The stages t in t0..n where something can happen under non-increasing bars:
+    the bar falls (a[t] < a[t-1]) or the previous bar is strictly inside (0, 1).
+    Bars of only 0 and 1 (the skip rules) are recognised by counting (C-speed):
+    then the only such stage is the one where the bar drops."""
+    seg = a[t0 - 1:n + 1]
+    ones = seg.count(1.0)
+    if ones + seg.count(0.0) == len(seg):
+        drop = t0 - 1 + ones        # a[t0-1 .. drop-1] are 1, a[drop ..] are 0
+        return [drop] if t0 <= drop <= n else []
+    rng = range(t0, n + 1)
+    return sorted(set(compress(rng, map(lt, a[t0:n + 1], a[t0 - 1:n])))
+                  | {t for t, c in zip(rng, ac[t0 - 1:n]) if 0.0 < c < 1.0})
 
 
 def _clamp(x: float) -> float:
@@ -387,21 +449,30 @@ class _Coef:
         self.beta = [0.0, 0.0, 1.0]  # beta[b], b >= 2
 
     def grow(self, n: int) -> None:
+        """Extend every list past index n (running products by accumulate)."""
         p = self.p
         rho, pi, Pi, al, be = self.rho, self.pi, self.Pi, self.alpha, self.beta
-        while len(rho) <= n:
-            y = len(rho)
-            rho.append(rho[-1] * (y - p) / y)
-        while len(pi) <= n:
-            y = len(pi)
-            pi.append(pi[-1] * (y - p) / y)
-            Pi.append(Pi[-1] + pi[-1])
-        while len(al) <= n + 1:
-            a = len(al) - 1
-            al.append(al[-1] * a / (a + 1.0 - p))
-        while len(be) <= n + 2:
-            b = len(be) - 1
-            be.append(be[-1] * (b - p) / b)
+        if len(rho) <= n:
+            y0 = len(rho)
+            rho.extend(accumulate([(y - p) / y for y in range(y0, n + 1)], mul,
+                                  initial=rho[-1]))
+            del rho[y0]     # the initial value is already there
+        if len(pi) <= n:
+            y0 = len(pi)
+            new = list(accumulate([(y - p) / y for y in range(y0, n + 1)], mul,
+                                  initial=pi[-1]))[1:]
+            pi.extend(new)
+            Pi.extend(list(accumulate(new, add, initial=Pi[-1]))[1:])
+        if len(al) <= n + 1:
+            a0 = len(al) - 1
+            al.extend(accumulate([a / (a + 1.0 - p) for a in range(a0, n + 1)], mul,
+                                 initial=al[-1]))
+            del al[a0 + 1]
+        if len(be) <= n + 2:
+            b0 = len(be) - 1
+            be.extend(accumulate([(b - p) / b for b in range(b0, n + 2)], mul,
+                                 initial=be[-1]))
+            del be[b0 + 1]
 
 
 # --------------------------------------------------------------------------
@@ -456,9 +527,173 @@ def _gm_eval(k: int, z: float, rho: list[float], Y: int) -> tuple[float, float]:
     return s - 1.0, ds / z
 
 
+# The decision numbers in the variable eps = 1/k: with w = k z, C(k,y) z^y =
+# w^y/y! prod_{i<y} (1 - i eps), so (GM) reads
+#
+#     Phi(w, eps) = sum_{y>=1} rho_y w^y/y! prod_{i=1}^{y-1} (1 - i eps) = 1,      (GMe)
+#
+# a series that stops at y = k for eps = 1/k and is analytic in eps near 0 for
+# any eps (the products are polynomials in eps; the terms fall like w^y/y!).  Its
+# root w(eps) is analytic near eps = 0 (implicit function theorem: dPhi/dw > 0),
+# with the singularities at |eps| of order 1/w(0) or more.
+
+_W_DEG = 12          # Taylor terms kept: (eps/R)^13 < 1e-18 for k >= _w_kmin
+_W_NODES = 32        # points on the Cauchy circle
+_W_CACHE: dict[float, tuple[list[float], int]] = {}
+
+
+def _w_series(w: complex | float, eps: complex | float, rho: list[float]
+              ) -> tuple[complex | float, complex | float]:
+    """Phi(w, eps) - 1 and dPhi/dw, summed until the terms fall below 1e-22 of the
+    sum (and past the largest term)."""
+    t = w
+    s = t * rho[1]
+    ds = rho[1]
+    mag = abs(w)
+    y = 1
+    while True:
+        y += 1
+        t = t * w * (1.0 - (y - 1) * eps) / y
+        term = t * rho[y]
+        s += term
+        ds += term * y / w
+        if y > mag + 3.0 and abs(term) <= 1e-22 * abs(s):
+            return s - 1.0, ds
+        if y + 2 >= len(rho):
+            raise ArithmeticError("series of the decision numbers did not converge")
+
+
+def _w_solve(eps: complex | float, rho: list[float], w0: complex | float
+             ) -> complex | float:
+    """The root w(eps) of (GMe) by Newton's method from w0 (quadratic convergence;
+    stops when a step is below 1e-15 of w, after which the error is below 1e-30)."""
+    w = w0
+    for _ in range(100):
+        h, dh = _w_series(w, eps, rho)
+        step = h / dh
+        w = w - step
+        if abs(step) <= 1e-15 * abs(w):
+            h, dh = _w_series(w, eps, rho)
+            return w - h / dh
+    raise ArithmeticError("Newton's method for a decision number did not converge")
+
+
+def _w_taylor(p: float) -> tuple[list[float], int]:
+    """(a, kmin): the Taylor coefficients a_0..a_12 of w(eps) at eps = 0 and the
+    smallest k from which they are used.  Cauchy's integral on the circle |eps| = r,
+    r = 1/(4 max(1, w_0)), by the trapezoid rule on 32 points (aliasing error
+    (r/R)^32 < 1e-19 for the radius of convergence R > 4r; conjugate symmetry
+    halves the work), each point solved by Newton from its neighbour.  Used for
+    k >= kmin = 24 max(1, w_0), where (eps/R)^13 < 1e-18 and the rounding of a_j,
+    about 1e-16 r^-j, is damped by (eps/r)^j <= 6^-j.  Checked against the exact
+    root at eps = 1/kmin and 1/(2 kmin); if either differs by more than 2e-15
+    (relative) the caller falls back to Newton for every k.  Cached per p."""
+    hit = _W_CACHE.get(p)
+    if hit is not None:
+        return hit
+    co = _Coef(p)
+    co.grow(400)
+    rho = co.rho
+    w0 = float(_w_solve(0.0, rho, math.log1p(1.0 / p)))
+    big = max(1.0, w0)
+    r = 0.25 / big
+    M = _W_NODES
+    vals: list[complex] = []
+    w: complex = complex(w0)
+    for j in range(M // 2 + 1):
+        e = r * complex(math.cos(2.0 * math.pi * j / M), math.sin(2.0 * math.pi * j / M))
+        w = complex(_w_solve(e, rho, w))
+        vals.append(w)
+    full = vals + [v.conjugate() for v in reversed(vals[1:M // 2])]
+    coef = []
+    for k in range(_W_DEG + 1):
+        s = 0.0
+        for j, v in enumerate(full):
+            ang = -2.0 * math.pi * j * k / M
+            s += v.real * math.cos(ang) - v.imag * math.sin(ang)
+        coef.append(s / M / r ** k)
+    kmin = int(math.ceil(24.0 * big))
+    ok = True
+    for k in (kmin, 2 * kmin):
+        ex = float(_w_solve(1.0 / k, rho, w0))
+        ap = _horner(coef, 1.0 / k)
+        if abs(ap - ex) > 2e-15 * ex:
+            ok = False
+    out = (coef, kmin if ok else 1 << 60)
+    _W_CACHE[p] = out
+    return out
+
+
+def _horner(c: Sequence[float], x: float) -> float:
+    s = 0.0
+    for v in reversed(c):
+        s = s * x + v
+    return s
+
+
 def decision_numbers(n: int, p: float = 1.0) -> tuple[list[float], list[float]]:
     """(b, bc): b[k] = the decision number with k candidates to come, k = 0..n-1
     (b[0] = 0), bc[k] = 1 - b[k] kept separately for precision.
+
+    With w = k z_k (z = 1/b - 1), (GM) is (GMe) at eps = 1/k.  For k below
+    kmin (24 when p = 1) each root is found by Newton's method on (GMe) from
+    the previous one; from kmin on, w is the Taylor polynomial of the analytic
+    root w(eps) (see :func:`_w_taylor`; error below 1e-17 relative), evaluated
+    for all k at once: z = w/k = eps (a_0 + a_1 eps + ...), b = 1/(1 + z),
+    1 - b = z/(1 + z).  O(1) per k, O(N) in all (about 10 list passes)."""
+    bd, bcd = _bars_desc(n, p)
+    return bd[::-1], bcd[::-1]
+
+
+def _bars_desc(n: int, p: float) -> tuple[list[float], list[float]]:
+    """The decision numbers for k = n-1 down to 0 (stage order: stage t has
+    k = n - t), see :func:`decision_numbers`.  The Taylor polynomial is cut, in
+    ranges [k/8, k] from the top, to the fewest terms whose tail
+    sum_{i>d} |a_i| k^-i is below 1e-19 a_0 at the bottom of the range."""
+    if n <= 1:
+        return [0.0], [1.0]
+    coef, kmin = _w_taylor(p)
+    co = _Coef(p)
+    co.grow(400)
+    w = _horner(coef, 0.0)
+    top = min(n, kmin)
+    small_b = [0.0] * top
+    small_bc = [1.0] * top
+    for k in range(1, top):
+        w = float(_w_solve(1.0 / k, co.rho, w if k > 1 else 1.0 / p))
+        small_b[k] = k / (k + w)
+        small_bc[k] = w / (k + w)
+    small_b.reverse()
+    small_bc.reverse()
+    bd: list[float] = []
+    bcd: list[float] = []
+    hi = n - 1
+    while hi >= kmin:
+        lo_k = max(kmin, (hi + 1) // 8)
+        d = len(coef) - 1
+        while d > 0 and sum(abs(c) * float(lo_k) ** -i for i, c in enumerate(coef)
+                            if i >= d) <= 1e-19 * abs(coef[0]):
+            d -= 1
+        eps = list(map(truediv, repeat(1.0), range(hi, lo_k - 1, -1)))
+        if d == 0:
+            acc = [coef[0]] * len(eps)
+        else:
+            acc = list(map(add, map(mul, eps, repeat(coef[d])), repeat(coef[d - 1])))
+            for c in reversed(coef[:d - 1]):
+                acc = list(map(add, map(mul, acc, eps), repeat(c)))
+        z = list(map(mul, acc, eps))                 # z = w/k
+        bk = list(map(truediv, repeat(1.0), map(add, z, repeat(1.0))))
+        bd.extend(bk)
+        bcd.extend(map(mul, z, bk))
+        hi = lo_k - 1
+    bd.extend(small_b)
+    bcd.extend(small_bc)
+    return bd, bcd
+
+
+def _decision_numbers_newton(n: int, p: float = 1.0) -> tuple[list[float], list[float]]:
+    """The decision numbers one k at a time (the reference for
+    :func:`decision_numbers`, kept for the tests): (b, bc) as there.
 
     Newton's method on (GM) in z = 1/b - 1, started from the linear
     extrapolation of k z_k (which tends to 0.8043... for p = 1).  The function
@@ -499,10 +734,8 @@ def decision_numbers(n: int, p: float = 1.0) -> tuple[list[float], list[float]]:
 def best_bars(n: int, p: float = 1.0) -> tuple[list[float], list[float]]:
     """Bars per stage in quantile space: a[t], ac[t] = 1 - a[t] for t = 0..n
     (a[0] = 1 is a sentinel; stage t has k = n - t candidates to come)."""
-    b, bc = decision_numbers(n, p)
-    a = [1.0] + [b[n - t] for t in range(1, n + 1)]
-    ac = [0.0] + [bc[n - t] for t in range(1, n + 1)]
-    return a, ac
+    bd, bcd = _bars_desc(n, p)
+    return [1.0] + bd, [0.0] + bcd
 
 
 # --------------------------------------------------------------------------
@@ -549,7 +782,9 @@ def _cell_kernel(N0: int, K: int, e: int, lo: float, loc: float, hi: float, hic:
     Gauss-Legendre with 3 nodes (change below e^0.01) or 6 on the binomial
     kernel -- error below 1e-16 relative.  Wide intervals: the exact difference
     of two binomial tails (module docstring)."""
-    w = hi - lo
+    # the width from the complements when they are small: 1 - u carries full
+    # relative precision near 1, a difference of two numbers near 1 does not
+    w = (loc - hic) if loc < 0.5 else (hi - lo)
     lam = (N0 - 1) * w / (2.0 * lo) if lo > 0.0 else math.inf
     lam2 = (Y * w / (2.0 * hic) if hic > 0.0 else math.inf) if Y > 0 else 0.0
     lm = lam if lam > lam2 else lam2
@@ -566,19 +801,15 @@ def _cell_kernel(N0: int, K: int, e: int, lo: float, loc: float, hi: float, hic:
             v0 = gw * half * math.exp(E * math.log1p(-uc))
             S = list(map(add, S, accumulate(repeat(uc / u, Y), mul, initial=v0)))
         return list(map(mul, S, _binoms(K, Y)))
-    C = [0.0] * (Y + 1)
     up_lo, low_lo = _tails(N0, loc, lo, Y)
     up_hi, low_hi = _tails(N0, hic, hi, Y)
-    wt = 1.0 / N0
-    for y in range(Y + 1):
-        ul = up_lo[y]
-        d = (ul - up_hi[y]) if ul < 0.5 else (low_hi[y] - low_lo[y])
-        C[y] = wt * d if d > 0.0 else 0.0
-        if N0 - 1 - y > 0:
-            wt *= (K - y) / (N0 - 1 - y)
-        else:
-            wt = 0.0
-    return C
+    # wt_y = C(K,y)/(N0 C(N0-1,y)) = (1/N0) prod_{i<y} (K - i)/(N0 - 1 - i)
+    m = min(Y, N0 - 1)
+    wts = list(accumulate([(K - y) / (N0 - 1 - y) for y in range(m)], mul,
+                          initial=1.0 / N0)) + [0.0] * (Y - m)
+    d = [(ul - uh) if ul < 0.5 else (lh - ll)
+         for ul, uh, lh, ll in zip(up_lo, up_hi, low_hi, low_lo)]
+    return [w * x if x > 0.0 else 0.0 for w, x in zip(wts, d)]
 
 
 def _vadd(acc: list[float], vec: list[float], w: float = 1.0) -> None:
@@ -596,48 +827,85 @@ def _dot(x: Sequence[float], y: Sequence[float]) -> float:
     return sum(map(mul, x, y))
 
 
+class _Acc:
+    """Sums over stages of the A-part vectors V and the cell kernels C (the
+    B-part is (t-1) C), plain, times K and divided by K (K >= 1), plus the y = 0
+    entries of the last stage (K = 0)."""
+
+    __slots__ = ("SV", "SC", "SKV", "SKC", "SGV", "SGC", "last_v0", "last_c0")
+
+    def __init__(self) -> None:
+        self.SV: list[float] = []
+        self.SC: list[float] = []
+        self.SKV: list[float] = []
+        self.SKC: list[float] = []
+        self.SGV: list[float] = []
+        self.SGC: list[float] = []
+        self.last_v0 = 0.0
+        self.last_c0 = 0.0
+
+    def add(self, K: float, V: list[float], Bw: list[float] | None, w: float = 1.0) -> None:
+        _vadd(self.SV, V, w)
+        _vadd(self.SKV, V, w * K)
+        if K >= 1.0:
+            _vadd(self.SGV, V, w / K)
+        if Bw is not None:
+            _vadd(self.SC, Bw, w)
+            _vadd(self.SKC, Bw, w * K)
+            if K >= 1.0:
+                _vadd(self.SGC, Bw, w / K)
+        if K == 0:
+            self.last_v0 += w * V[0]
+            self.last_c0 += w * (Bw[0] if Bw is not None else 0.0)
+
+
+def _stage(n: int, K: float, lo: float, loc: float, hi: float, hic: float, Y: int,
+           m0: float = 0.0) -> tuple[list[float], list[float] | None]:
+    """(V, C) for the stage with K candidates after it (t = n - K, e = t - 1) and the
+    bar interval [lo, hi] (1 - lo = loc, 1 - hi = hic): C[y] = int_lo^hi u^e B_K(y)
+    du (None if empty), V = C + hi^e int_hi^1 B_K(y) du.  K may be any real >= 0
+    (the formulas are analytic in K; used by the summation formula)."""
+    e = n - 1 - K
+    tail_f = _pow(hi, e) if (hi > m0 and hic > 0.0) else 0.0
+    if lo < hi:
+        C: list[float] | None = _cell_kernel(n, K, e, lo, loc, hi, hic, Y)
+        V = C[:]  # type: ignore[index]
+    else:
+        C = None
+        V = [0.0] * (Y + 1)
+    if tail_f > 0.0:
+        g = tail_f / (K + 1)
+        V = list(map(add, V, map(mul, _upper_tails(K + 1, hic, hi, Y), repeat(g, Y + 1))))
+    return V, C
+
+
 def _r2_core(n: int, a: Sequence[float], ac: Sequence[float], p: float, *,
              i0: int = 0, m0: float = 0.0, m0c: float = 1.0, win_only: bool = False,
              forced: bool = True, co: _Coef | None = None) -> _R2:
     """Exact evaluation (see the module docstring); a, ac indexed 0..n with
     a[0] = 1.  With (i0, m0): start after stage i0 with maximum m0 < a[i0+1]
     (the advice case; then only ``win`` is meaningful).  O(N x Y), Y about 19
-    for the optimal bars.
+    for the optimal bars; stages where nothing can happen (equal bars of 0 or
+    1, as in the skip rules) are passed over in bulk.
 
     Per stage t (K = n - t later candidates) the A-part vector V[y] (first offer
     at t with y later candidates above it) and the B-part vector Bw[y] (the bar
     drops below the maximum at t, y later candidates above that maximum) are
-    summed into SV and SC; the functionals of the module docstring are dot
-    products of these sums with fixed coefficient vectors, except the few
-    whose coefficients depend on K (interviews, forced last), which are
-    accumulated per stage."""
+    summed (:class:`_Acc`); the functionals of the module docstring are dot
+    products of these sums with fixed coefficient vectors (:func:`_r2_finish`)."""
     co = co or _Coef(p)
     co.grow(64)
     N0 = n - i0
-    decl = p < 1.0
-    full = not win_only
-    SV: list[float] = []
-    SC: list[float] = []
-    sum_v = sum_c = 0.0          # total A / B mass
-    sum_kv = sum_kc = 0.0        # sum K * mass
-    kal_v = kal_c = 0.0          # sum K * (alpha . vector)
-    gam_v = gam_c = 0.0          # sum (gamma . vector) / K, K >= 1
-    last_v0 = last_c0 = 0.0      # y = 0 entries of the last stage (K = 0)
-    al: list[float] = []
-    gam: list[float] = []
-
-    def coef(L: int) -> None:
-        nonlocal al, gam
-        if len(al) >= L:
-            return
-        co.grow(L + 2)
-        pi, Pi = co.pi, co.Pi
-        al = [1.0] + [Pi[y] / (y + 1.0) for y in range(1, L)]
-        gam = [0.0] + [y * pi[y] - (y - 1) * pi[y - 1] for y in range(1, L)]
-
-    coef(64)
+    acc = _Acc()
     point_done = m0 <= 0.0
-    for t in range(i0 + 1, n + 1):
+    # stages that can matter: a bar interval of positive length, or a tail above
+    # the previous bar (a[t-1] < 1), or the stage where the bar drops below m0
+    rng = range(i0 + 1, n + 1)
+    if point_done:
+        ts = _live_stages(a, ac, i0 + 1, n)
+    else:
+        ts = list(rng)
+    for t in ts:
         K = n - t
         e = t - 1 - i0
         if a[t] > m0:
@@ -647,22 +915,14 @@ def _r2_core(n: int, a: Sequence[float], ac: Sequence[float], p: float, *,
         hi, hic = a[t - 1], ac[t - 1]
         tail_f = _pow(hi, e) if (hi > m0 and hic > 0.0) else 0.0
         if not lo < hi and tail_f <= 0.0 and (point_done or a[t] > m0):
-            if full and forced and K == 0:
-                last_v0 = last_c0 = 0.0
             continue            # nothing can happen at this stage
         Y = _ycut(K, loc)
-        if lo < hi:
-            C: list[float] | None = _cell_kernel(N0, K, e, lo, loc, hi, hic, Y)
-            V = C[:]  # type: ignore[index]
-        else:
-            C = None
-            V = [0.0] * (Y + 1)
-        if tail_f > 0.0:
-            f = tail_f
-            if f > 0.0:
-                g = f / (K + 1)
-                V = list(map(add, V, map(mul, _upper_tails(K + 1, hic, hi, Y),
-                                         repeat(g, Y + 1))))
+        if 0 < K < N0 - 1 and Y > 64:
+            # C[y] <= int_0^1 u^e B_K(y) du = C(K,y)/(N0 C(N0-1,y)) <= (K/(N0-1))^y/N0:
+            # cut where that is below exp(-52) (skip rules: the one wide stage)
+            Y = min(Y, int(52.0 / math.log((N0 - 1.0) / K)) + 16)
+        V, C = _stage(N0, K, lo, loc, hi, hic, Y, m0) if lo < hi or tail_f > 0.0 \
+            else ([0.0] * (Y + 1), None)
         Bw = C
         bw = float(e)
         if not point_done and a[t] <= m0:
@@ -679,57 +939,53 @@ def _r2_core(n: int, a: Sequence[float], ac: Sequence[float], p: float, *,
                 Bw = list(map(mul, Bw, repeat(bw, len(Bw))))
         else:
             Bw = None
-        _vadd(SV, V)
-        if Bw is not None:
-            _vadd(SC, Bw)
-        if not full:
-            continue
-        if Y + 2 > len(al):
-            coef(2 * Y + 8)
-        sv = sum(V)
-        sum_v += sv
-        sum_kv += K * sv
-        if decl:
-            kal_v += K * _dot(V, al)
-        if Bw is not None:
-            sc = sum(Bw)
-            sum_c += sc
-            sum_kc += K * sc
-            kal_c += K * _dot(Bw, al)
-        if forced:
-            if K >= 1:
-                gam_v += _dot(V, gam) / K
-                if Bw is not None:
-                    gam_c += _dot(Bw, gam) / K
-            else:
-                last_v0 = V[0]
-                last_c0 = Bw[0] if Bw is not None else 0.0
+        if win_only:
+            _vadd(acc.SV, V)
+            if Bw is not None:
+                _vadd(acc.SC, Bw)
+        else:
+            acc.add(K, V, Bw)
+    return _r2_finish(n, a, p, acc, i0=i0, m0=m0, win_only=win_only, forced=forced, co=co)
+
+
+def _r2_finish(n: int, a: Sequence[float], p: float, acc: _Acc, *, i0: int = 0,
+               m0: float = 0.0, win_only: bool = False, forced: bool = True,
+               co: _Coef) -> _R2:
+    """The outputs of :func:`_r2_core` from the stage sums."""
+    N0 = n - i0
+    SV, SC = acc.SV, acc.SC
     L = max(len(SV), len(SC), 1)
     co.grow(L + 2)
     rho, pi, Pi = co.rho, co.pi, co.Pi
-    for v in (SV, SC):
+    for v in (SV, SC, acc.SKV, acc.SKC, acc.SGV, acc.SGC):
         if len(v) < L:
             v.extend([0.0] * (L - len(v)))
     win = p * SV[0] + (1.0 - p) * math.fsum(map(mul, SV[1:], rho[1:L])) \
         + math.fsum(map(mul, SC[1:], rho[1:L]))
     if win_only:
         return _R2(_clamp(win), 0.0, 0.0, [], 0.0)
-    coef(L)
+    al = [1.0] + list(map(truediv, Pi[1:L], range(2, L + 1)))
+    gam = [0.0] + list(map(sub, map(mul, range(1, L), pi[1:L]),
+                           map(mul, range(0, L - 1), pi[0:L - 1])))
+    decl = p < 1.0
+    sum_v, sum_c = math.fsum(SV), math.fsum(SC)
+    sum_kv, sum_kc = math.fsum(acc.SKV), math.fsum(acc.SKC)
+    kal_v = _dot(acc.SKV, al) if decl else 0.0
+    kal_c = _dot(acc.SKC, al)
     p_inf = _pow(a[n], N0) if a[n] > m0 else 0.0
     none_reg = p_inf + (1.0 - p) * math.fsum(map(mul, SV, pi[:L])) \
         + math.fsum(map(mul, SC, pi[:L]))
     # E_extra(x, K) = sum_y B_K(y) (K alpha_y + beta_y): later candidates seen after a
     # declined offer (or after a crossing) while every record is offered
-    be = [0.0] + [Pi[y - 1] - y * Pi[y] / (y + 1.0) for y in range(1, L)]
+    be = [0.0] + list(map(sub, Pi[0:L - 1],
+                          map(truediv, map(mul, range(1, L), Pi[1:L]), range(2, L + 1))))
     extra_a = (kal_v + math.fsum(map(mul, SV, be))) if decl else 0.0
     seen = N0 * p_inf + N0 * sum_v - sum_kv + (1.0 - p) * extra_a \
         + N0 * sum_c - sum_kc + kal_c + math.fsum(map(mul, SC, be))
-    piJ = [0.0] * L
-    acc = 0.0
-    for y in range(L - 1, -1, -1):
-        piJ[y] = SV[y] + acc
-        if y >= 1:
-            acc += SC[y] / y
+    # piJ[y] = SV[y] + sum_{y' > y} SC[y']/y'
+    suf = list(accumulate(reversed(list(map(truediv, SC[1:L], range(1, L))))))
+    suf.reverse()
+    piJ = list(map(add, SV[:L], suf + [0.0]))
     # P(reach the last stage and the last is not a record) = E[M_{n-1}; reach n]:
     # nobody crossed a bar (M_{n-1} < a_{n-1}), or the first offer / the crossing came
     # at a stage <= n-1 and every later record up to n-1 declined.  With J' later
@@ -738,12 +994,153 @@ def _r2_core(n: int, a: Sequence[float], ac: Sequence[float], p: float, *,
     # the degree-K basis has the coefficients pi_y - (y pi_y - (y-1) pi_{y-1})/K.
     fm = 0.0
     if forced and n >= 2 and i0 == 0:
+        gam_v = _dot(acc.SGV, gam)
+        gam_c = _dot(acc.SGC, gam)
         case1 = (n - 1) * _pow(a[n - 1], n) / n if a[n - 1] > 0.0 else 0.0
-        sa = math.fsum(map(mul, SV, pi[:L])) - last_v0 - gam_v
-        sb = math.fsum(map(mul, SC, pi[:L])) - last_c0 - gam_c
+        sa = math.fsum(map(mul, SV, pi[:L])) - acc.last_v0 - gam_v
+        sb = math.fsum(map(mul, SC, pi[:L])) - acc.last_c0 - gam_c
         fm = case1 + (1.0 - p) * sa + sb
     return _R2(win=_clamp(win), none_reg=_clamp(none_reg), seen=seen, piJ=piJ,
                forced_mass=_clamp(fm))
+
+
+# --------------------------------------------------------------------------
+# goal best: sums over the stages of the optimal rule by the Euler-Maclaurin
+# (Gregory) summation formula
+# --------------------------------------------------------------------------
+#
+# For the optimal bars a_t = b_{n-t}, the contribution f(K) of the stage with K
+# candidates after it (the vectors V, C of :func:`_stage` and their products
+# with K and 1/K) is an analytic function of a real K: the bars are b(K) =
+# K/(K + w(1/K)) with w analytic (:func:`_w_taylor`), C(K, y) is a polynomial in
+# K, and u^(n-1-K), the binomial kernels and the tails are analytic in K.  So
+#
+#     sum_{K=A}^{B} f(K) = int_A^B f(K) dK + f(A)/2 + f(B)/2
+#                          + sum_k g_k (nabla^k f(B) + (-1)^k Delta^k f(A)),
+#
+# Gregory's form of the Euler-Maclaurin formula (g = 1/12, 1/24, 19/720, ...;
+# e.g. Hildebrand, *Introduction to Numerical Analysis*, 1956, section 5.9,
+# from memory; q = 6 differences are kept).  Its remainder (the
+# Poisson-summation terms of the trapezoid rule) is of order exp(-2 pi d) for f
+# analytic in a strip |Im K| < d (Trefethen & Weideman 2014); here d is of order
+# K >= 24, so it is far below rounding.  The differences at B = n - 2 fall like
+# n^-k (f changes on the scale of n there).  At the lower end either the stage
+# mass, about exp(-w (n-1-A)/A), is below exp(-52) of the total (long pools:
+# the terms at A are left out and the integral stops where the mass is that
+# small), or A >= sqrt(10 w n), where f changes by less than e^0.1 per unit K
+# and the differences at A fall like 0.11^k (:func:`_em_points`).  The
+# integral is done by Gauss-Legendre on geometric pieces.  About 100 stage
+# evaluations replace n; the first stage and the stages K < A are summed
+# directly (exact bars).  The tests compare with the direct sum to 1e-13.
+# Requirement for the exactness: every stage value must be smooth in K to
+# rounding, which is why interval widths are computed from the complements
+# (:func:`_cell_kernel`) -- a width taken as the difference of two numbers near 1
+# carries a relative error of 1e-16/width (1e-8 at K = 10^4).
+
+_GREGORY = (1.0 / 12, 1.0 / 24, 19.0 / 720, 3.0 / 160, 863.0 / 60480, 275.0 / 24192,
+            33953.0 / 3628800)
+_GL16X, _GL16W = _gauss_legendre(16)
+_EM_AMIN = 24
+
+
+def _gregory_weights(q: int) -> list[float]:
+    """c_j, j = 0..q: f(B)/2 + sum_{k<=q} g_k nabla^k f(B) = sum_j c_j f(B - j)."""
+    c = [0.0] * (q + 1)
+    c[0] = 0.5
+    for k in range(1, q + 1):
+        g = _GREGORY[k - 1]
+        for j in range(k + 1):
+            c[j] += g * (-1) ** j * math.comb(k, j)
+    return c
+
+
+_GREG6 = _gregory_weights(6)
+
+
+def _em_points(n: int, p: float, k_req: int = 0
+               ) -> tuple[int, list[tuple[float, float]], bool] | None:
+    """(L, [(K, weight)], lower) for int_L^{n-2} f(K) dK, or None for small n
+    (then the direct sum is used).  The stages K < L are summed directly;
+    ``lower`` says whether the Gregory terms at K = L are needed.
+
+    The stage mass falls like exp(-w (n-1-K)/K) towards small K.  If it is below
+    exp(-52) at K_cut = w (n-1)/(52 + w) >= max(24, k_req) + 8, the integral
+    stops at K_cut and L = max(24, kmin) (no terms at L: everything below K_cut
+    is negligible).  Else L = max(k_req, sqrt(10 w n)), where f changes by
+    less than e^0.1 from one K to the next, so Gregory's differences at L fall
+    like 0.11^k.  [L', n-2] is cut into pieces [K/3, K] from the top, each by
+    16-point Gauss-Legendre in K: the nearest singularity of f is at K = 0 (f is
+    smooth on the scale of K), two half-lengths from the middle of a piece, so
+    the error is of order (2 + sqrt 3)^-32 ~ 1e-18 of the piece."""
+    coef, kmin = _w_taylor(p)
+    A = max(kmin, _EM_AMIN)
+    B = n - 2
+    if B < 8 * A:
+        return None
+    wl = min(_horner(coef, 1.0 / A), _horner(coef, 1.0 / B), coef[0])
+    wh = max(_horner(coef, 1.0 / A), _horner(coef, 1.0 / B), coef[0])
+    k_cut = wl * (n - 1.0) / (52.0 + wl)
+    if k_cut >= max(A, k_req) + 8:
+        L, bottom, lower = A, k_cut, False
+    else:
+        L = max(A, k_req, int(math.ceil(math.sqrt(10.0 * wh * n))))
+        bottom, lower = float(L), True
+        if B < 3 * L:
+            return None
+    pts: list[tuple[float, float]] = []
+    hi = float(B)
+    while hi > bottom:
+        lo = max(bottom, hi / 3.0)
+        mid = 0.5 * (lo + hi)
+        half = 0.5 * (hi - lo)
+        for x, gw in zip(_GL16X, _GL16W):
+            pts.append((mid + half * x, gw * half))
+        hi = lo
+    return L, pts, lower
+
+
+def _r2_core_opt(n: int, a: Sequence[float], ac: Sequence[float], p: float,
+                 forced: bool, co: _Coef) -> _R2 | None:
+    """:func:`_r2_core` for the optimal bars by the summation formula above, or
+    None when it does not apply (then the caller sums directly)."""
+    plan = _em_points(n, p)
+    if plan is None:
+        return None
+    A, pts, lower = plan
+    B = n - 2
+    co.grow(64)
+    acc = _Acc()
+
+    def exact(K: int, w: float = 1.0) -> None:
+        t = n - K
+        lo, loc, hi, hic = a[t], ac[t], a[t - 1], ac[t - 1]
+        V, C = _stage(n, K, lo, loc, hi, hic, _ycut(K, loc))
+        e = t - 1
+        Bw = list(map(mul, C, repeat(float(e)))) if (C is not None and e > 0) else None
+        acc.add(K, V, Bw, w)
+
+    for K in range(0, A):
+        exact(K)
+    exact(n - 1)
+    for j, c in enumerate(_GREG6):
+        exact(B - j, c)
+        if lower:
+            exact(A + j, c)
+    coef, _ = _w_taylor(p)
+    Ys = []
+    for K in (A, (A + B) // 2, B):
+        Ys.append(_ycut(K, ac[n - K]))
+    Y = max(Ys) + 2
+    for K, wt in pts:
+        w0 = _horner(coef, 1.0 / K)
+        w1 = _horner(coef, 1.0 / (K + 1.0))
+        lo, loc = K / (K + w0), w0 / (K + w0)
+        hi, hic = (K + 1.0) / (K + 1.0 + w1), w1 / (K + 1.0 + w1)
+        V, C = _stage(n, K, lo, loc, hi, hic, Y)
+        e = n - 1.0 - K
+        Bw = list(map(mul, C, repeat(e))) if C is not None else None
+        acc.add(K, V, Bw, wt)
+    return _r2_finish(n, a, p, acc, forced=forced, co=co)
 
 
 def _r2_win_from(n: int, a: Sequence[float], ac: Sequence[float], p: float, i0: int,
@@ -876,14 +1273,59 @@ def _geom(u: float, uc: float, m: int) -> float:
     return -math.expm1(m * math.log1p(-uc)) / uc if uc < 0.5 else (1.0 - u ** m) / uc
 
 
-def _bar_z(dist: ScoreDistribution, a: Sequence[float], ac: Sequence[float]) -> list[float]:
-    if not isinstance(dist, Normal):
-        return [0.0] * len(a)
-    return [dist_q(u, uc) for u, uc in zip(a, ac)]
+_SQRT2 = math.sqrt(2.0)
+_INV_SQRT2PI = 1.0 / math.sqrt(2.0 * math.pi)
+
+
+def _upper_z_chain(ac: Sequence[float]) -> list[float]:
+    """z_i = Phi^-1(1 - ac_i) for a slowly changing sequence of small upper-tail
+    chances ac (the optimal bars, stage by stage): each z from the one before by
+    the Taylor step z + t + z t^2/2 (t = (ac_prev - ac)/phi), then one Newton
+    step on the upper tail, z + (Q(z) - ac)/phi(z) (Q = 1 - Phi by erfc, full
+    relative precision).  The step's error (1 + 2 z^2) t^3/6 is below 1e-8 when
+    |t| <= 1e-3, and Newton squares it (error z e^2/2 < 1e-16); where |t| is
+    larger, or ac >= 0.02, the exact :func:`dist_q` is used.  O(1) per entry
+    with one erfc and one exp."""
+    out = [0.0] * len(ac)
+    erfc, exp = math.erfc, math.exp
+    z = 0.0
+    ph = 0.0
+    prev = -1.0                 # the previous chance, -1 when the chain restarts
+    for i, q in enumerate(ac):
+        if 0.0 < q < 0.02 and prev > 0.0:
+            t = (prev - q) / ph
+            if -1e-3 <= t <= 1e-3:
+                zp = z + t + 0.5 * z * t * t
+                ph = _INV_SQRT2PI * exp(-0.5 * zp * zp)
+                z = zp + (0.5 * erfc(zp / _SQRT2) - q) / ph
+                prev = q
+                out[i] = z
+                continue
+        if 0.0 < q < 1.0:
+            z = dist_q(1.0 - q, q)
+        else:
+            z = math.inf if q <= 0.0 else -math.inf
+        if 0.0 < q < 0.02:
+            prev = q
+            ph = _INV_SQRT2PI * exp(-0.5 * z * z)
+        else:
+            prev = -1.0
+        out[i] = z
+    return out
 
 
 def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistribution,
                must: bool, zs: Sequence[float] | None = None) -> tuple[float, float]:
+    r_reg, r_fi, r_g1 = _r2_scores_part(n, a, ac, dist, must, 1, zs)
+    forced = 0.0
+    if must and n >= 2:
+        forced = r_g1 / (n - 1) * dist.mean - r_fi
+    return r_reg, forced
+
+
+def _r2_scores_part(n: int, a: Sequence[float], ac: Sequence[float],
+                    dist: ScoreDistribution, must: bool, t_from: int,
+                    zs: Sequence[float] | None = None) -> tuple[float, float, float]:
     """(E[X; regular hire], E[X; forced hire]) for a record rule with p = 1:
 
         E[X; regular] = sum_t [a_t^(t-1) psi(a_t)
@@ -892,11 +1334,25 @@ def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistr
                         - (n-1) int_0^{a_n} psi u^(n-2) du,
         G = (1/(n-1)) sum_{m<n} a_m^(n-1)   (the chance of reaching the last stage).
 
+    :func:`_r2_scores_part` sums the stages t >= t_from: (the regular part, the
+    forced integrals, sum_{t_from <= m < n} a_m^(n-1)).
+
     A stage whose interval is one quadrature piece (almost all of them for the
     optimal bars) is done inline with both integrands on the same nodes;
     wider intervals go through :class:`_PsiQuad`.  O(N) nodes."""
     Q = _PsiQuad(dist)
-    zs = zs if zs is not None else _bar_z(dist, a, ac)
+    t0 = max(2, t_from)
+    # stages that add something: a bar strictly inside (0, 1), or an interval
+    stages = sorted(set(_live_stages(a, ac, t0, n))
+                    | {t for t, c in zip(range(t0, n + 1), ac[t0:n + 1]) if 0.0 < c < 1.0}) \
+        if not _zero_one(a) else _live_stages(a, ac, t0, n)
+    if zs is None:
+        if isinstance(dist, Normal):
+            need = {1, n} | set(stages) | {t - 1 for t in stages}
+            # z values only for the stages that need them (read like a list)
+            zs = {t: dist_q(a[t], ac[t]) for t in need if 0 <= t <= n}  # type: ignore
+        else:
+            zs = [0.0] * (n + 1)
     normal = Q.normal
     kinks = Q.kinks
     psi = dist.tail_mean
@@ -909,10 +1365,10 @@ def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistr
             return Q.psi_z(zs[t])[2]
         return psi(a[t])
 
-    total = psi_at(1) if a[1] > 0.0 else dist.mean
+    total = (psi_at(1) if a[1] > 0.0 else dist.mean) if t_from <= 1 else 0.0
     forced_int = 0.0
     P = float(max(n - 2, 0))
-    for t in range(2, n + 1):
+    for t in stages:
         lo, hi = a[t], a[t - 1]
         if lo > 0.0:
             total += _pow(lo, t - 1) * psi_at(t)
@@ -950,7 +1406,7 @@ def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistr
             else:
                 mid = 0.5 * (lo + hi)
                 midc = 0.5 * (ac[t] + ac[t - 1])
-                half = 0.5 * (hi - lo)
+                half = 0.5 * (ac[t] - ac[t - 1]) if ac[t] < 0.5 else 0.5 * (hi - lo)
                 for x, w in zip(xs, ws):
                     u = mid + half * x
                     uc = midc - half * x
@@ -971,8 +1427,12 @@ def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistr
         # effective power of g1 on this interval: e + (growth of the geometric sum)
         uc_hi = ac[t - 1]
         P1 = e + (min(K, 1.0 / uc_hi) if uc_hi > 0.0 else K)
-        total += (t - 1) * Q.integrate(lo, ac[t], zs[t], hi, ac[t - 1], zs[t - 1], g1, P1, b1)
-        if must:
+        # stages whose whole integral is below 1e-20 of the scale (late stages of
+        # the optimal rule in long pools) are left out
+        if (t - 1) * b1(hi) > 1e-20 * B:
+            total += (t - 1) * Q.integrate(lo, ac[t], zs[t], hi, ac[t - 1], zs[t - 1], g1,
+                                           P1, b1)
+        if must and (t - 1) * B * _pow(hi, n - 1) / (n - 1) > 1e-20 * B:
             def g2(u: float, uc: float) -> float:
                 return _pow(u, n - 2)
 
@@ -981,15 +1441,139 @@ def _r2_scores(n: int, a: Sequence[float], ac: Sequence[float], dist: ScoreDistr
 
             forced_int += (t - 1) * Q.integrate(lo, ac[t], zs[t], hi, ac[t - 1], zs[t - 1],
                                                 g2, P, b2)
-    forced = 0.0
+    g1_ = 0.0
     if must and n >= 2:
         if a[n] > 0.0:
             forced_int += (n - 1) * Q.integrate(
                 0.0, 1.0, -math.inf, a[n], ac[n], zs[n], lambda u, uc: _pow(u, n - 2), P,
                 lambda h: B * _pow(h, n - 1) / (n - 1))
-        g1_ = math.fsum(_pow(a[m], n - 1) for m in range(1, n)) / (n - 1)
-        forced = g1_ * dist.mean - forced_int
-    return total, forced
+        m0_ = max(1, t_from)
+        mid_ = [c for c in ac[m0_:n] if 0.0 < c < 1.0]
+        g1_ = math.fsum([math.exp((n - 1) * math.log1p(-c)) for c in mid_]
+                        + [1.0] * a[m0_:n].count(1.0))
+    return total, forced_int, g1_
+
+
+def _psi_u(dist: ScoreDistribution) -> Callable[[float, float], float]:
+    """psi(u) from (u, 1 - u) with precision near u = 1 (normal: mean (1-u) + sd
+    phi(Phi^-1(u)) with the inverse taken on the smaller tail)."""
+    if isinstance(dist, Normal):
+        mu, sd = dist.mu, dist.sd
+        return lambda u, uc: mu * uc + sd * norm_pdf(dist_q(u, uc))
+    if isinstance(dist, Uniform):
+        lo_, wd = dist.low, dist.width
+        return lambda u, uc: lo_ * uc + wd * uc * (1.0 + u) * 0.5
+    tm = dist.tail_mean
+    return lambda u, uc: tm(u)
+
+
+def _score_stage(n: int, K: float, lo: float, loc: float, hi: float, hic: float,
+                 width: float, psi2: Callable[[float, float], float],
+                 Q: "_PsiQuad", B: float, must: bool) -> tuple[float, float] | None:
+    """(regular, forced) parts of the stage with K later candidates (t = n - K) for
+    :func:`_r2_scores_opt`: a_t^(t-1) psi(a_t) + (t-1) int psi u^(t-2) geom du and
+    (t-1) int psi u^(n-2) du over [lo, hi] = [a_t, a_(t-1)] of the given width
+    (computed without cancellation by the caller).  Gauss-Legendre in u (3 or 6
+    nodes) on up to 64 equal pieces on which u^(n-2) changes by less than e^0.5
+    (error below 1e-16 relative); None if more would be needed (the caller
+    then sums directly).  Sample scores: the caller keeps the interval above
+    the kinks of psi."""
+    e = n - 1.0 - K            # t - 1
+    P = float(max(n - 2, 0))
+    if not lo > 0.0:
+        return None
+    # pieces (at most 64) on which u^(n-2) changes by less than e^0.5
+    pieces = max(1, int(math.ceil(width / (lo / (P + 2.0)))))
+    if pieces > 64:
+        return None
+    hw = 0.5 * width / pieces
+    lam = hw * (P + 1.0) / lo
+    xs, ws = (_GL3X, _GL3W) if lam <= 0.01 else (_GLX, _GLW)
+    s1 = s2 = 0.0
+    em1 = e - 1.0
+    for j in range(pieces):
+        midc = loc - (2 * j + 1) * hw       # 1 - (middle of piece j)
+        mid = 1.0 - midc if midc < 0.5 else lo + (2 * j + 1) * hw
+        for x, w in zip(xs, ws):
+            u = mid + hw * x
+            uc = midc - hw * x
+            lu = math.log1p(-uc)
+            f = w * psi2(u, uc)
+            s1 += f * math.exp(em1 * lu) * (-math.expm1((K + 1.0) * lu) / uc)
+            s2 += f * math.exp((n - 2) * lu)
+    reg = math.exp(e * math.log1p(-loc)) * psi2(lo, loc) + e * s1 * hw
+    return reg, (e * s2 * hw if must else 0.0)
+
+
+def _r2_scores_opt(n: int, a: Sequence[float], ac: Sequence[float],
+                   dist: ScoreDistribution, must: bool, p: float) -> tuple[float, float] | None:
+    """:func:`_r2_scores` for the optimal bars by the summation formula of
+    :func:`_r2_core_opt` (the stage parts are analytic in K as long as no kink of
+    psi lies above the bars: sample scores), or None when it does not apply."""
+    k_req = 0
+    if isinstance(dist, Sample) and dist.kinks:
+        # the stages must lie above the top kink: b(K) > top from K = k_req on
+        top = dist.kinks[-1]
+        k_req = next((K for K in range(1, n - 1) if a[n - K] > top), n)
+    plan = _em_points(n, p, k_req)
+    if plan is None:
+        return None
+    A, pts, lower = plan
+    B = n - 2
+    coef, _ = _w_taylor(p)
+    Q = _PsiQuad(dist)
+    psi2 = _psi_u(dist)
+    bnd = dist.abs_mean_bound() + 1e-300
+    reg = forced_int = g1 = 0.0
+
+    def wK(k: float) -> float:
+        return _horner(coef, 1.0 / k)
+
+    def width(K: float, w0: float, w1: float) -> float:
+        return (K * (w0 - w1) + w0) / ((K + w0) * (K + 1.0 + w1))
+
+    def exact(K: int, wt: float = 1.0) -> bool:
+        nonlocal reg, forced_int, g1
+        t = n - K
+        lo, loc, hi, hic = a[t], ac[t], a[t - 1], ac[t - 1]
+        if K >= A:
+            wd = width(K, wK(K), wK(K + 1.0))
+        else:
+            wd = (loc - hic) if loc < 0.5 else (hi - lo)
+        r = _score_stage(n, K, lo, loc, hi, hic, wd, psi2, Q, bnd, must)
+        if r is None:
+            return False
+        reg += wt * r[0]
+        forced_int += wt * r[1]
+        if K >= 1:
+            g1 += wt * math.exp((n - 1) * math.log1p(-loc))
+        return True
+
+    # stage 1 (K = n - 1): psi(a_1); the stages K < A go to the direct sum below
+    reg += psi2(a[1], ac[1]) if a[1] > 0.0 else dist.mean
+    g1 += math.exp((n - 1) * math.log1p(-ac[1]))
+    for j, c in enumerate(_GREG6):
+        if not exact(B - j, c) or (lower and not exact(A + j, c)):
+            return None
+    for K, wt in pts:
+        w0, w1 = wK(K), wK(K + 1.0)
+        lo, loc = K / (K + w0), w0 / (K + w0)
+        hi, hic = (K + 1.0) / (K + 1.0 + w1), w1 / (K + 1.0 + w1)
+        r = _score_stage(n, K, lo, loc, hi, hic, width(K, w0, w1), psi2, Q, bnd, must)
+        if r is None:
+            return None
+        reg += wt * r[0]
+        forced_int += wt * r[1]
+        g1 += wt * math.exp((n - 1) * math.log1p(-loc))
+    # the last A stages (t = n - A + 1 .. n) directly
+    r_reg, r_fi, r_g1 = _r2_scores_part(n, a, ac, dist, must, n - A + 1)
+    reg += r_reg
+    forced_int += r_fi
+    g1 += r_g1
+    forced = 0.0
+    if must and n >= 2:
+        forced = g1 / (n - 1) * dist.mean - forced_int
+    return reg, forced
 
 
 # --------------------------------------------------------------------------
@@ -1011,16 +1595,12 @@ def _ranks_from_parts(n: int, reg: list[float], forced_head: list[float],
     H = min(n, RANK_HEAD)
     A = len(forced_head)
     head = [0.0] * H
-    for i in range(min(H, len(reg))):
-        head[i] += reg[i]
-    for i in range(H):
-        head[i] += forced_head[i] if i < A else forced_tail
-    cum_reg = [0.0]
-    for v in reg:
-        cum_reg.append(cum_reg[-1] + v)
-    cum_f = [0.0]
-    for v in forced_head:
-        cum_f.append(cum_f[-1] + v)
+    h = min(H, len(reg))
+    head[:h] = reg[:h]
+    fh = forced_head[:H] + [forced_tail] * max(0, H - A)
+    head = list(map(add, head, fh))
+    cum_reg = list(accumulate(reg, initial=0.0))
+    cum_f = list(accumulate(forced_head, initial=0.0))
 
     def le(m: int) -> float:
         m = max(0, min(m, n))
@@ -1028,8 +1608,8 @@ def _ranks_from_parts(n: int, reg: list[float], forced_head: list[float],
         f = cum_f[min(m, A)] + max(0, m - A) * forced_tail
         return _clamp(r + f)
 
-    mean = math.fsum((i + 1) * v for i, v in enumerate(reg))
-    mean += math.fsum((i + 1) * v for i, v in enumerate(forced_head))
+    mean = math.fsum(map(mul, range(1, len(reg) + 1), reg))
+    mean += math.fsum(map(mul, range(1, A + 1), forced_head))
     if n > A and forced_tail > 0.0:
         mean += forced_tail * (n * (n + 1) / 2.0 - A * (A + 1) / 2.0)
     return _Ranks(head=[_clamp(v) for v in head], le=le, mean_mass=mean)
@@ -1047,18 +1627,18 @@ def _r2_ranks(n: int, core: _R2, p: float, must: bool, co: _Coef,
     co.grow(L + 2)
     al, be = co.alpha, co.beta
     # S_a = sum_{J >= a} pi(J) beta_{J+1}
-    S = [0.0] * (L + 1)
-    acc = 0.0
-    for J in range(L - 1, -1, -1):
-        acc += piJ[J] * be[J + 1] if J >= 1 else 0.0
-        S[J] = acc
+    terms = [0.0] + list(map(mul, piJ[1:], be[2:L + 1]))
+    S = list(accumulate(reversed(terms)))
+    S.reverse()
+    S.append(0.0)
     R = min(n, L + 1)
-    reg = [0.0] * R
-    for a_ in range(1, R + 1):
-        v = p * (piJ[a_ - 1] if a_ - 1 < L else 0.0)
-        if p < 1.0 and a_ < L:
-            v += (1.0 - p) * al[a_] * S[a_]
-        reg[a_ - 1] = v
+    reg = [p * v for v in piJ[:R]]
+    if len(reg) < R:
+        reg.extend([0.0] * (R - len(reg)))
+    if p < 1.0:
+        m = max(0, min(R, L - 1))
+        reg[:m] = map(add, reg[:m],
+                      map(mul, map(mul, repeat(1.0 - p), al[1:m + 1]), S[1:m + 1]))
     if not must or n < 2:
         return _ranks_from_parts(n, reg, [], 0.0)
     if p < 1.0 and not rank_based:
@@ -1128,27 +1708,26 @@ def _result(n: int, name: str, description: str, rule: dict, pf: _Perf,
 
 def _eval_record_rule(n: int, a: Sequence[float], ac: Sequence[float], p: float,
                       must: bool, dist: ScoreDistribution, *, rank_based: bool,
-                      zs: Sequence[float] | None = None) -> _Perf:
-    """Goal-best style rule (offer to a best-so-far above the bar)."""
+                      zs: Sequence[float] | None = None, optimal: bool = False) -> _Perf:
+    """Goal-best style rule (offer to a best-so-far above the bar).  ``optimal``:
+    the bars are those of :func:`best_bars` (then the stage sums may use the
+    summation formula, :func:`_r2_core_opt`)."""
     co = _Coef(p)
-    core = _r2_core(n, a, ac, p, forced=must, co=co)
+    core = _r2_core_opt(n, a, ac, p, must, co) if optimal else None
+    if core is None:
+        core = _r2_core(n, a, ac, p, forced=must, co=co)
     forced = p * core.forced_mass if (must and n >= 2) else 0.0
     none = core.none_reg - forced
     ranks = _r2_ranks(n, core, p, must, co, rank_based)
     score: float | None = None
     if p == 1.0:
-        reg, fs = _r2_scores(n, a, ac, dist, must, zs)
+        sc = _r2_scores_opt(n, a, ac, dist, must, p) if optimal else None
+        reg, fs = sc if sc is not None else _r2_scores(n, a, ac, dist, must, zs)
         score = reg + (fs if must else 0.0)
     elif rank_based and isinstance(dist, Uniform) and ranks is not None:
-        # E[U | rank a] = (n + 1 - a)/(n + 1) for rules that look at ranks only
-        mass = math.fsum(ranks.head[i] * (n - i) for i in range(len(ranks.head)))
-        H = len(ranks.head)
-        # ranks beyond the head: regular part (skip rules list all ranks) + forced tail
-        extra = 0.0
-        for m in range(H + 1, n + 1):
-            pa = ranks.le(m) - ranks.le(m - 1)
-            extra += pa * (n + 1 - m)
-        eu = (mass + extra) / (n + 1)
+        # E[U | rank a] = (n + 1 - a)/(n + 1) for rules that look at ranks only, so
+        # E[U; hire] = sum_a P(a) (n + 1 - a)/(n + 1) = P(hire) - E[rank; hire]/(n + 1)
+        eu = (1.0 - none) - ranks.mean_mass / (n + 1)
         score = dist.low * (1.0 - none) + dist.width * eu
     return _Perf(success=core.win, best_reg=core.win, none=_clamp(none), forced=forced,
                  seen=core.seen, hires=_clamp(1.0 - none), score_sum=score, ranks=ranks,
@@ -1193,16 +1772,15 @@ def _eval_constant(n: int, s: float, p: float, must: bool, dist: ScoreDistributi
             vals[k] = acc
         # P(rank = a) = sum_{k >= a} ...  = acc at the largest k >= a inside the window
         top_k = lo + len(pmf) - 1
-        for a_ in range(1, n + 1):
-            if a_ > top_k:
-                break
-            reg[a_ - 1] = vals[max(a_, lo)]
+        first = max(1, lo)
+        reg = [vals[first]] * (first - 1) + [vals[k] for k in range(first, top_k + 1)]
         while reg and reg[-1] == 0.0:
             reg.pop()
     best_reg = reg[0] if reg else 0.0
     score = p * psi_b * (1.0 - none_reg) / (p * q) if q > 0.0 else 0.0
     forced = 0.0
     fh: list[float] = []
+    f_tail = 0.0
     f_best = 0.0
     if must and n >= 1 and b > 0.0:
         forced = p * reach_last * b
@@ -1213,27 +1791,26 @@ def _eval_constant(n: int, s: float, p: float, must: bool, dist: ScoreDistributi
         else:
             x = (1.0 - p) * q
             tot = x + b
-            w = [0.0] * n
             if x > 0.0:
                 lo, pmf = _binom_window(n - 1, x / tot, b / tot)
                 scale = b * tot ** (n - 1)
-                for i, v in enumerate(pmf):
-                    w[lo + i] = v * scale
+                w = [0.0] * lo + [v * scale for v in pmf]
             else:
-                w[0] = b * b ** (n - 1)
-            fh = [0.0] * n
-            acc = 0.0
-            for a_ in range(1, n + 1):
-                d = a_ - 1
-                acc += w[d] / (n - d)
-                fh[a_ - 1] = p * acc
+                w = [b * b ** (n - 1)]
+            # fh[a-1] = p sum_{d < a} w_d/(n - d): constant after the window, where
+            # it is passed on as the per-rank tail value
+            while len(w) > 1 and w[-1] == 0.0:
+                w.pop()
+            cum = list(accumulate(map(truediv, w, range(n, n - len(w), -1))))
+            fh = [p * v for v in cum]
+            f_tail = fh[-1]
         f_best = fh[0]
         score += p * reach_last * (dist.mean - psi_b) if b > 0.0 else 0.0
     none = none_reg - forced
     if not must:
         ranks = _ranks_from_parts(n, reg, [], 0.0)
     else:
-        ranks = _ranks_from_parts(n, reg, fh, 0.0)
+        ranks = _ranks_from_parts(n, reg, fh, f_tail)
     success = best_reg + f_best
     obj = success - cost * seen if goal == "best" else score - cost * seen
     return _Perf(success=success, best_reg=best_reg, none=_clamp(none), forced=forced,
@@ -1252,29 +1829,94 @@ class _ScorePlan:
     bars: list[array]          # bars[r][k]: bar with r openings left, k to come after
     forced: list[array]        # forced[r][k]: 1 if the stage takes anyone
     value: float               # V_{n,m}
+    # upq[r][k] = P(X > bar), pab[r][k] = E[X; X > bar] (0 where P(X > bar) = 0)
+    upq: list[array] | None = None
+    pab: list[array] | None = None
 
 
 def score_bars(n: int, m: int, p: float, c: float, must: bool,
                dist: ScoreDistribution) -> _ScorePlan:
-    """Moser's recursion with declines, cost and m openings.  O(N m)."""
-    bars = [array("d", [0.0] * n) for _ in range(m + 1)]
-    forced = [array("b", [0] * n) for _ in range(m + 1)]
-    V = [0.0] * (m + 1)           # V[r] = V_{k, r} for the current k (to come)
+    """Moser's recursion with declines, cost and m openings.  O(N m), one call of
+    ``dist.upper_parts`` per (stage, openings left), which also gives what the
+    forward evaluation needs (the chance of clearing the bar and the partial
+    mean above it)."""
+    bars = [array("d", bytes(8 * n)) for _ in range(m + 1)]
+    forced = [array("b", bytes(n)) for _ in range(m + 1)]
+    upq = [array("d", bytes(8 * n)) for _ in range(m + 1)]
+    pab = [array("d", bytes(8 * n)) for _ in range(m + 1)]
     mean = dist.mean
+    up = dist.upper_parts
+    if m == 1:
+        b1, q1, a1 = bars[1], upq[1], pab[1]
+        v = 0.0
+        k0 = 0
+        if must and n >= 1:
+            forced[1][0] = 1
+            b1[0] = -math.inf
+            q1[0] = 1.0
+            a1[0] = mean
+            v = -c + p * mean
+            k0 = 1
+        if isinstance(dist, Normal):
+            # Normal.upper_parts inlined (the same operations): one erfc, one exp
+            mu, sd = dist.mu, dist.sd
+            erfc, exp = math.erfc, math.exp
+            for k in range(k0, n):
+                z = (v - mu) / sd
+                q = 0.5 * erfc(z / _SQRT2)
+                ph = _INV_SQRT2PI * exp(-0.5 * z * z)
+                b1[k] = v
+                q1[k] = q
+                a1[k] = mu * q + sd * ph if q > 0.0 else 0.0
+                v = -c + v + p * (sd * (ph - z * q) if z < 5.0 else dist.excess(v))
+        else:
+            for k in range(k0, n):
+                q, pa, ex = up(v)
+                b1[k] = v
+                q1[k] = q
+                a1[k] = pa if q > 0.0 else 0.0
+                v = -c + v + p * ex
+        return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=v, upq=upq, pab=pab)
+    V = [0.0] * (m + 1)           # V[r] = V_{k, r} for the current k (to come)
+    rs = range(m, 0, -1)          # downwards, so that V[r - 1] is still V_{k, r-1}
+    smp = isinstance(dist, Sample)
+    if smp:
+        xs, fs, psik = dist.xs, dist.fs, dist._psi_knots  # type: ignore[attr-defined]
+        nxs = len(xs) - 1
+        x_lo, x_hi = xs[0], xs[-1]
+    else:
+        xs = fs = psik = []
+        nxs = 0
+        x_lo = x_hi = 0.0
     for k in range(0, n):
-        # stage with k candidates after it; compute V_{k+1, r} from V_{k, .}
-        newV = [0.0] * (m + 1)
-        for r in range(1, m + 1):
+        # stage with k candidates after it; V_{k+1, r} from V_{k, .}, in place
+        for r in rs:
             if must and k < r:
                 forced[r][k] = 1
                 bars[r][k] = -math.inf
-                newV[r] = -c + p * (mean + V[r - 1]) + (1.0 - p) * V[r]
+                upq[r][k] = 1.0
+                pab[r][k] = mean
+                V[r] = -c + p * (mean + V[r - 1]) + (1.0 - p) * V[r]
             else:
                 D = V[r] - V[r - 1]
                 bars[r][k] = D
-                newV[r] = -c + V[r] + p * dist.excess(D)
-        V = newV
-    return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=V[m])
+                if smp and x_lo < D < x_hi:
+                    # Sample.upper_parts inlined (the same operations)
+                    i = bisect.bisect_right(xs, D, 1, nxs) - 1
+                    x0, x1, f0, f1 = xs[i], xs[i + 1], fs[i], fs[i + 1]
+                    u = f0 + (D - x0) / (x1 - x0) * (f1 - f0)
+                    top = psik[i + 1]
+                    q = 1.0 - u
+                    pa = top + (f1 - u) * 0.5 * (D + x1)
+                    ex = (f1 - u) * 0.5 * (x1 - D) + (top - D * (1.0 - f1))
+                    if ex < 0.0:
+                        ex = 0.0
+                else:
+                    q, pa, ex = up(D)
+                upq[r][k] = q
+                pab[r][k] = pa if q > 0.0 else 0.0
+                V[r] = -c + V[r] + p * ex
+    return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=V[m], upq=upq, pab=pab)
 
 
 def _score_values_at(n: int, m: int, p: float, c: float, must: bool,
@@ -1318,45 +1960,25 @@ def _bar_quantile(dist: ScoreDistribution, x: float) -> tuple[float, float]:
 
 def _eval_score_plan(plan: _ScorePlan, p: float, c: float, dist: ScoreDistribution,
                      want_best: bool) -> _Perf:
-    """Forward evaluation of the goal-score rule.  O(N m)."""
+    """Forward evaluation of the goal-score rule.  O(N m); for one opening the
+    chance of reaching each stage is a running product (C-speed)."""
     n, m = plan.n, plan.m
-    # prob[r][f]: chance of meeting the stage with r openings left, f = 1 if a forced
-    # hire happened already
-    prob = [[0.0, 0.0] for _ in range(m + 1)]
-    prob[m][0] = 1.0
-    score = 0.0
-    seen = 0.0
-    hires = 0.0
-    for i in range(1, n + 1):
-        k = n - i
-        new = [[0.0, 0.0] for _ in range(m + 1)]
-        new[0] = prob[0][:]
-        for r in range(1, m + 1):
-            pr0, pr1 = prob[r]
-            tot = pr0 + pr1
-            if tot <= 0.0:
-                continue
-            seen += tot
-            fz = plan.forced[r][k]
-            if fz:
-                bq, bqc = 0.0, 1.0
-            else:
-                bq, bqc = _bar_quantile(dist, plan.bars[r][k])
-            hp = p * bqc
-            hires += tot * hp
-            score += tot * p * (_partial_above(dist, -math.inf if fz else plan.bars[r][k])
-                                if bqc > 0.0 else 0.0)
-            stay = 1.0 - hp
-            if fz:
-                new[r - 1][1] += tot * hp
-            else:
-                new[r - 1][0] += pr0 * hp
-                new[r - 1][1] += pr1 * hp
-            new[r][0] += pr0 * stay
-            new[r][1] += pr1 * stay
-        prob = new
-    none = prob[m][0] + prob[m][1]
-    forced_any = sum(prob[r][1] for r in range(m + 1))
+    assert plan.upq is not None and plan.pab is not None
+    if m == 1:
+        q1 = plan.upq[1][::-1]            # stage order i = 1..n (k = n - i)
+        a1 = plan.pab[1][::-1]
+        reach = list(accumulate(map(sub, repeat(1.0), map(mul, repeat(p), q1)), mul,
+                                initial=1.0))
+        seen = sum(reach) - reach[n]
+        hires = p * sum(map(mul, reach, q1))
+        score = p * sum(map(mul, reach, a1))
+        none = reach[n]
+        forced_any = p * reach[n - 1] if (n >= 1 and plan.forced[1][0]) else 0.0
+        prob = None
+    else:
+        prob, score, seen, hires = _score_plan_loop(plan, p)
+        none = prob[m][0] + prob[m][1]
+        forced_any = sum(prob[r][1] for r in range(m + 1))
     success = best_reg = None
     if want_best and m == 1 and n <= SCORE_BEST_MAX:
         bars_u = [0.0 if plan.forced[1][n - i] else _bar_quantile(dist, plan.bars[1][n - i])[0]
@@ -1367,6 +1989,44 @@ def _eval_score_plan(plan: _ScorePlan, p: float, c: float, dist: ScoreDistributi
     return _Perf(success=success, best_reg=best_reg, none=_clamp(none),
                  forced=_clamp(forced_any), seen=seen, hires=hires, score_sum=score,
                  ranks=None, objective=score - c * seen)
+
+
+def _score_plan_loop(plan: _ScorePlan, p: float
+                     ) -> tuple[list[list[float]], float, float, float]:
+    """Several openings: prob[r][f], the chance of meeting a stage with r openings
+    left (f = 1 if a forced hire happened already), carried stage by stage."""
+    n, m = plan.n, plan.m
+    assert plan.upq is not None and plan.pab is not None
+    p0 = [0.0] * (m + 1)          # no forced hire yet
+    p1 = [0.0] * (m + 1)          # a forced hire happened already
+    p0[m] = 1.0
+    score = 0.0
+    seen = 0.0
+    hires = 0.0
+    upq, pab, forced = plan.upq, plan.pab, plan.forced
+    rs = range(1, m + 1)          # upwards: r - 1 has had its own move already
+    for i in range(1, n + 1):
+        k = n - i
+        for r in rs:
+            pr0 = p0[r]
+            pr1 = p1[r]
+            tot = pr0 + pr1
+            if tot <= 0.0:
+                continue
+            seen += tot
+            hp = p * upq[r][k]
+            hires += tot * hp
+            score += tot * p * pab[r][k]
+            stay = 1.0 - hp
+            if forced[r][k]:
+                p1[r - 1] += tot * hp
+            else:
+                p0[r - 1] += pr0 * hp
+                p1[r - 1] += pr1 * hp
+            p0[r] = pr0 * stay
+            p1[r] = pr1 * stay
+    prob = [[x, y] for x, y in zip(p0, p1)]
+    return prob, score, seen, hires
 
 
 def _r1_best(n: int, bars: Sequence[float], p: float) -> tuple[float, float]:
@@ -1496,14 +2156,16 @@ def _words_score(n: int, plan: _ScorePlan, dec: int, must: bool, p: float) -> st
     m = plan.m
     b = plan.bars[m]
     fz = plan.forced[m]
-    reg = [b[n - i] for i in range(1, n + 1) if not fz[n - i]]
+    # the regular stages (first and last only): forced stages are the last ones
+    nreg = n - fz.count(1)
+    reg = [b[n - 1], b[n - nreg]] if nreg >= 2 else ([b[n - 1]] if nreg == 1 else [])
     what = "a candidate" if m == 1 else "each candidate"
     if not reg:
         w = "Make an offer to every candidate (each one is needed)."
         return w
     w = f"Make an offer to {what} who scores at least {_fmt(reg[0], dec)} at stage 1"
-    if len(reg) >= 2:
-        w += f"; the bar falls to {_fmt(reg[-1], dec)} by stage {len(reg):,}"
+    if nreg >= 2:
+        w += f"; the bar falls to {_fmt(reg[-1], dec)} by stage {nreg:,}"
     if must:
         if m == 1:
             w += "; at the last stage take anyone (a hire is required)"
@@ -1593,19 +2255,26 @@ def solve_fullinfo(s: Scenario) -> SolveResult:
     limits: list[Limit] = []
     if goal == "best":
         a, ac = best_bars(n, p)
-        zs = _bar_z(dist, a, ac)
-        pf = _eval_record_rule(n, a, ac, p, must, dist, rank_based=False, zs=zs)
-        score_thr: list[float | None] = []
-        for t in range(1, n + 1):
-            if a[t] <= 0.0:
-                score_thr.append(None)
-            elif isinstance(dist, Normal):
-                score_thr.append(dist.mu + dist.sd * zs[t])
-            else:
-                score_thr.append(dist.quantile(a[t]))
+        zs = [0.0] + _upper_z_chain(ac[1:]) if isinstance(dist, Normal) else None
+        pf = _eval_record_rule(n, a, ac, p, must, dist, rank_based=False, zs=zs,
+                               optimal=True)
+        score_thr: list[float | None]
+        if isinstance(dist, Normal):
+            assert zs is not None
+            mu_, sd_ = dist.mu, dist.sd
+            score_thr = [mu_ + sd_ * z for z in zs[1:]]
+        elif isinstance(dist, Uniform):
+            lo_, wd_ = dist.low, dist.width
+            score_thr = [lo_ + wd_ * u for u in a[1:]]
+        else:
+            score_thr = [dist.quantile(u) for u in a[1:]]
+        for t in range(n, 0, -1):       # the last stage(s): any best so far
+            if a[t] > 0.0:
+                break
+            score_thr[t - 1] = None
         words = _words_best(n, score_thr, dec, must, p)
         thresholds = [1] * n
-        policy = Policy(thresholds=thresholds, groups=group_thresholds(thresholds),
+        policy = Policy(thresholds=thresholds, groups=[StageGroup(1, n, 1)],
                         words=words, skip=None, score_thresholds=score_thr, interval=True)
         if p == 1.0:
             limits.append(Limit("success_probability", FULL_INFO_LIMIT,
@@ -1622,23 +2291,28 @@ def solve_fullinfo(s: Scenario) -> SolveResult:
                          "last candidate must be taken (the forced hire's rank has no exact "
                          "short form here).")
         method = ("full-information best choice (Gilbert & Mosteller 1966): decision "
-                  "numbers by Newton's method O(N), exact performance in the binomial "
-                  "basis O(N x 19), expected score by Gauss-Legendre O(N)")
+                  "numbers by Newton's method and a Taylor series in 1/k O(N), exact "
+                  "performance in the binomial basis summed over the stages by the "
+                  "Euler-Maclaurin (Gregory) formula, expected score by Gauss-Legendre")
         name = "optimal"
     else:
         m = s.openings
         plan = score_bars(n, m, p, c, must, dist)
         pf = _eval_score_plan(plan, p, c, dist, want_best=True)
-        score_thr = []
-        for i in range(1, n + 1):
-            k = n - i
-            score_thr.append(None if plan.forced[m][k] else float(plan.bars[m][k]))
+        def stage_bars(r: int) -> list[float | None]:
+            # stage order (k = n - i); the forced stages are the last ones
+            out: list[float | None] = plan.bars[r][::-1].tolist()
+            nf = plan.forced[r].count(1)
+            if nf:
+                out[n - nf:] = [None] * nf
+            return out
+
+        score_thr = stage_bars(m)
         by_open = None
         if m > 1:
-            by_open = {str(r): [None if plan.forced[r][n - i] else float(plan.bars[r][n - i])
-                                for i in range(1, n + 1)] for r in range(1, m + 1)}
+            by_open = {str(r): stage_bars(r) for r in range(1, m + 1)}
         thresholds = [n] * n
-        policy = Policy(thresholds=thresholds, groups=group_thresholds(thresholds),
+        policy = Policy(thresholds=thresholds, groups=[StageGroup(1, n, n)],
                         words=_words_score(n, plan, dec, must, p), skip=None,
                         score_thresholds=score_thr, interval=True,
                         thresholds_by_openings_left=({str(r): [n] * n

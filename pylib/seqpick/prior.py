@@ -18,12 +18,15 @@ for every allowed mean (at least 12 standard deviations and 40 counts above
 the mean).  That tail is dropped and the rest renormalised to sum to 1, so
 every number computed from the prior is exact for the truncated prior, which
 differs from the untruncated one by less than 1e-16 in total variation.
-Entries below about 1e-308 underflow to 0 (their true value is smaller still).
+Entries below the smallest normal float (about 2.2e-308) are set to 0 (their
+true value is smaller still).
 
 ``survival(prior)`` gives ``S[i] = P(N >= i)`` for ``i = 0..M+1``, summed
 from the top (small terms first, so every tail keeps its relative precision).
 
-Complexity: O(M) time and memory for every function here.
+Complexity: O(M) time and memory for every function here.  The loops run in
+C (``itertools.accumulate``, ``map``, slicing) in the same order of
+operations as plain loops would.
 
 References
 ----------
@@ -36,15 +39,19 @@ Technical note, AT&T Labs (saddle-point form of the Poisson pmf).
 from __future__ import annotations
 
 import math
+import sys
+from itertools import accumulate, compress, repeat
+from operator import ge, lt, mul, truediv
 
 from .errors import ScenarioError
 from .scenario import FixedPool, PoissonPool, Pool, RangePool, WeightsPool
 
 __all__ = ["poisson_pmf", "pool_prior", "survival", "suffix_sums", "prior_mean",
-           "single_size"]
+           "single_size", "wide_fsum"]
 
 
 _HALF_LOG_2PI = 0.5 * math.log(2.0 * math.pi)
+_TINY = sys.float_info.min          # smallest normal float, about 2.2e-308
 
 
 def _stirlerr(n: int) -> float:
@@ -75,6 +82,22 @@ def _bd0(x: float, mu: float) -> float:
     return x * math.log(x / mu) + mu - x
 
 
+def wide_fsum(values: list[float]) -> float:
+    """``math.fsum`` of non-negative values, fast when they span many orders.
+
+    ``math.fsum`` keeps one partial sum per range of exponents, so a Poisson
+    pmf (values from ~1e-2 down to 1e-308) costs it ~20 partials per term.
+    Terms below 1e-30 of the largest are summed separately in plain floating
+    point and added to the exactly rounded sum of the others: together they
+    are below 1e-26 of the total, far below its last digit.  O(len), in C.
+    """
+    if not values:
+        return 0.0
+    cut = max(values) * 1e-30
+    big = math.fsum(compress(values, map(ge, values, repeat(cut))))
+    return big + sum(compress(values, map(lt, values, repeat(cut))))
+
+
 def poisson_pmf(mean: float, max_n: int, *, normalise: bool = False) -> list[float]:
     """P(N = n) for n = 0..max_n, N ~ Poisson(mean), mean > 0.  O(max_n).
 
@@ -84,11 +107,12 @@ def poisson_pmf(mean: float, max_n: int, *, normalise: bool = False) -> list[flo
     ``lgamma`` difference loses ~1e-16 * mean), the others from the exact
     ratios ``p(n+1) = p(n) * mean / (n+1)`` walking up and
     ``p(n-1) = p(n) * n / mean`` walking down -- no overflow, no big
-    factorial.  Values below ~1e-308 underflow to 0.
+    factorial.  Values below the smallest normal float (~2.2e-308) are set
+    to 0.
 
-    With ``normalise=True`` the list is divided by its sum (the truncated
-    tail above ``max_n`` is dropped); otherwise the raw pmf values are
-    returned.
+    With ``normalise=True`` the list is divided by its sum
+    (:func:`wide_fsum`; the truncated tail above ``max_n`` is dropped);
+    otherwise the raw pmf values are returned.
 
     References
     ----------
@@ -108,18 +132,25 @@ def poisson_pmf(mean: float, max_n: int, *, normalise: bool = False) -> list[flo
         out[mode] = (math.exp(-_stirlerr(mode) - _bd0(float(mode), mean))
                      / math.sqrt(2.0 * math.pi * mode))
     v = out[mode]
-    for n in range(mode, max_n):
-        v *= mean / (n + 1)
-        out[n + 1] = v
-    v = out[mode]
-    for n in range(mode, 0, -1):
-        v *= n / mean
-        out[n - 1] = v
-        if v == 0.0:
-            break
+    # walk up: p(n+1) = p(n) * (mean / (n+1)), the products in order
+    up = list(accumulate([mean / (n + 1) for n in range(mode, max_n)], mul, initial=v))
+    out[mode + 1:] = up[1:]
+    # walk down: p(n-1) = p(n) * (n / mean), stopping below the smallest normal
+    # float (subnormal values carry almost no digits and make every later sum
+    # over them slow; they are set to 0 like the ones that underflow)
+    down = list(accumulate([n / mean for n in range(mode, 0, -1)], mul, initial=v))[1:]
+    if down and down[-1] < _TINY:
+        cut = next(j for j, w in enumerate(down) if w < _TINY)
+        down = down[:cut]
+    out[mode - len(down):mode] = down[::-1]
+    if up and up[-1] < _TINY:
+        for j in range(mode + 1, max_n + 1):
+            if out[j] < _TINY:
+                out[j:] = [0.0] * (max_n + 1 - j)
+                break
     if normalise:
-        total = math.fsum(out)
-        out = [x / total for x in out]
+        total = wide_fsum(out)
+        out = list(map(truediv, out, repeat(total)))
     return out
 
 
@@ -131,6 +162,17 @@ def pool_prior(pool: Pool) -> list[float]:
     ScenarioError
         on ``pool`` for a form that has no size prior (time windows, chances).
     """
+    if isinstance(pool, WeightsPool):
+        # pool.max_size scans every weight in Python; the last positive one is
+        # usually the last
+        ws = pool.weights
+        m = len(ws)
+        while m > 0 and not ws[m - 1] > 0:
+            m -= 1
+        w = [0.0]
+        w += map(float, ws[:m])
+        total = math.fsum(w)
+        return list(map(truediv, w, repeat(total)))
     m = pool.max_size
     if isinstance(pool, FixedPool):
         prior = [0.0] * (m + 1)
@@ -138,28 +180,19 @@ def pool_prior(pool: Pool) -> list[float]:
         return prior
     if isinstance(pool, RangePool):
         lo, hi = pool.size_min, pool.size_max
-        prior = [0.0] * (hi + 1)
         w = 1.0 / (hi - lo + 1)
-        for n in range(lo, hi + 1):
-            prior[n] = w
-        return prior
+        return [0.0] * lo + [w] * (hi - lo + 1)
     if isinstance(pool, PoissonPool):
         return poisson_pmf(pool.size_mean, m, normalise=True)
-    if isinstance(pool, WeightsPool):
-        w = [0.0] + [float(x) for x in pool.weights[:m]]
-        total = math.fsum(w)
-        return [x / total for x in w]
     raise ScenarioError("pool", f"the {getattr(pool, 'kind', '?')} pool form has no "
                                 "size prior for the relative-rank engine")
 
 
 def suffix_sums(values: list[float]) -> list[float]:
     """``out[i] = sum(values[i:])`` for i = 0..len, summed from the top.  O(len)."""
-    out = [0.0] * (len(values) + 1)
-    acc = 0.0
-    for i in range(len(values) - 1, -1, -1):
-        acc += values[i]
-        out[i] = acc
+    out = list(accumulate(reversed(values)))
+    out.reverse()
+    out.append(0.0)
     return out
 
 
@@ -171,11 +204,15 @@ def survival(prior: list[float]) -> list[float]:
 
 
 def prior_mean(prior: list[float]) -> float:
-    """E[N].  O(M)."""
-    return math.fsum(n * w for n, w in enumerate(prior))
+    """E[N] (:func:`wide_fsum` of n prior[n]).  O(M)."""
+    return wide_fsum(list(map(mul, range(len(prior)), prior)))
 
 
 def single_size(prior: list[float]) -> int | None:
     """The pool size if the prior puts all its mass on one size, else None."""
-    support = [n for n, w in enumerate(prior) if w > 0.0]
-    return support[0] if len(support) == 1 else None
+    if len(prior) - prior.count(0.0) != 1:
+        return None
+    last = len(prior) - 1
+    if prior[last] > 0.0:
+        return last
+    return next(n for n, w in enumerate(prior) if w > 0.0)

@@ -67,16 +67,55 @@ and passes a candidate who cannot.  Comparisons allow a relative 1e-13.
 Forward evaluation
 ------------------
 Any threshold rule (the optimal one and the compared skip rules) is
-evaluated exactly in the same model: the chance of meeting stage i with l
-openings left is pushed forward in O(M m); success, the outcome split,
-interviews, hires and the expected rank (arithmetic series over j <= t) follow
-from it.  The rank distribution (ranks 1..200) and the top-m table push the
-distribution of the hire's current relative rank forward (exact, O(M R)
-for R ranks); for fixed pools and one opening the top-m table instead uses
-``P(rank <= K | relative rank j at stage i) = P(Hypergeom(N, K, i) >= j)``
-(at least j of the best K are among the first i), O(M) per entry for
-best-so-far rules.  These extras are computed when the work fits the limits
-below, else left ``None`` (never a guess) with a note.
+evaluated exactly in the same model.  The decisions depend on the stage
+only, so the process can be run as if the pool never ended and weighted by
+``prior[n]`` where it stops: ``A_i``, the chance of meeting stage i with
+nobody hired, is a product ``A_{i+1} = A_i (1 - p t_i / i)`` (several
+openings: one such recurrence per level, fed by the hires of the level
+above), and success, the outcome split, interviews, hires and the expected
+rank (an arithmetic series over j <= t) are sums of ``A_i`` against
+per-stage vectors.  The loops run in C (``itertools.accumulate``, ``map``,
+slicing) wherever the recurrence allows.
+
+The rank of the hire (the rank distribution and the "among the best m"
+table) is exact as well, by one of three methods:
+
+* Known pool size N, one opening, a rule that passes, offers to
+  best-so-fars or offers to anyone (goal best; every skip rule): a
+  best-so-far hired at stage i has rank a with chance
+  ``C(N-a, i-1) / C(N, i) = (i/N) C(N-i, a-1) / C(N-1, a-1)``.  Over a run
+  s..e of best-so-far stages, ``i A_{i+1} = (i - p) A_i``, and summation by
+  parts of ``T(a) = sum_i A_i C(N-i, a-1)`` (with ``(N-i-a+1) C(N-i, a-1) =
+  a C(N-i, a)`` and ``C(N-i+1, a) = C(N-i, a) + C(N-i, a-1)``) gives
+
+      (a + 1 - p) T(a+1) = (N - a) T(a) - beta_a,
+      beta_a = (s-1) A_s C(N-s+1, a) - e A_{e+1} C(N-e, a),
+
+  a first-order recurrence in the rank: ranks 1..R cost O(R) per run
+  after an O(N) pass (:func:`_tau_head`, normalised so that no binomial
+  coefficient is formed).  A stage that offers to anyone hires a uniformly
+  random candidate.  The share columns use
+  ``P(rank <= K | best of the first i) = 1 - C(N-K, i) / C(N, i)``
+  (:func:`_fixed_tails`).
+* Otherwise (goals top / rank, uncertain pool sizes, several openings):
+  the relative rank a of the (best) hire is a Markov chain (up by one with
+  chance a/i); in ``E_i(a) = a C(i, a) P(relative rank a at stage i)`` the
+  stay factors telescope and each rank is a prefix sum of the rank below
+  plus the new hires (:func:`_e_head`): O(M m) per rank, in C.  Ranks
+  ``1..R`` are listed with R as large as :data:`PUSH_BUDGET` allows (at
+  least 1, at most :data:`RANK_HEAD`); the share columns for uncertain
+  sizes or several openings need every rank up to M/2 and are given while
+  that fits :data:`PUSH_FULL` (pools up to about 600 candidates).  Known sizes
+  with one opening get ranks 1..10 at least (the top-m counts) and the
+  share columns from :func:`_fixed_tails` (hypergeometric tails,
+  Hoeffding-bounded cuts).
+* Several openings where a level with a hire offers to more than
+  best-so-fars (cost-driven offers to anyone): the direct push of the
+  relative rank (:func:`_push`) while it fits :data:`PUSH_FALLBACK`.
+
+``RankDistribution`` lists ranks ``1..R``; ``rest`` is the chance of a hire
+ranked below R, so ``sum(probabilities) + rest + none = 1``.  What does not
+fit the limits is left ``None`` (never a guess) with a note.
 
 Complexity (M = largest possible pool size)
 -------------------------------------------
@@ -88,10 +127,11 @@ Complexity (M = largest possible pool size)
 * uncertain pools add O(M) (suffix sums of the prior);
 * forward evaluation: O(M m) per rule (O(M) for one opening);
 * success curve: O(M) once, then O(1) per skip count (suffix sums);
-* rank distribution: O(M min(M, 200) m) per rule, computed while the total
-  stays within :data:`PUSH_BUDGET` (about one CPU second); the top-m table
-  for fixed pools and one opening: O(M) per entry for best-so-far rules
-  (:data:`HYPER_BUDGET`).
+* rank of the hire: O(M + R) per rule for known sizes, one opening and
+  best-so-far rules (R = min(N, 200)), plus O(N/K) (typically) per share
+  column; otherwise O(M m R) for ranks 1..R with R M m bounded by
+  :data:`PUSH_BUDGET` / :data:`PUSH_FULL` (known sizes with one opening:
+  at least the O(10 M) of ranks 1..10; any rule: at least O(M m) for rank 1).
 
 Supported combinations
 ----------------------
@@ -121,24 +161,29 @@ Smith, M. H. (1975). A secretary problem with uncertain employment.
 *J. Appl. Probab.* 12, 620-624.
 Lindley, D. V. (1961). Dynamic programming and decision theory. *Applied
 Statistics* 10, 39-51.
+Hoeffding, W. (1963). Probability inequalities for sums of bounded random
+variables. *J. Amer. Statist. Assoc.* 58, 13-30 (tail bounds, also for
+sampling without replacement, i.e. the hypergeometric law).
+Loader, C. (2000). Fast and accurate computation of binomial probabilities.
+Technical note, AT&T Labs (the hypergeometric pmf as a ratio of binomial pmfs).
 """
 
 from __future__ import annotations
 
 import itertools
-import json
 import math
-import operator
-from array import array
 from dataclasses import dataclass, field
-from functools import lru_cache
-from typing import Sequence
+from itertools import accumulate, compress, islice, repeat
+from operator import add, eq, mul, ne, sub, truediv
+from typing import Iterable
 
 from .advise import Advice, SearchState
 from .errors import ScenarioError
-from .prior import pool_prior, prior_mean, single_size, suffix_sums, survival
+from .prior import (_bd0, _stirlerr, pool_prior, single_size, suffix_sums, survival,
+                    wide_fsum)
 from .results import (TOP_COUNTS, TOP_SHARES, Curve, Limit, Outcome, Policy,
-                      RankDistribution, RuleResult, SolveResult, group_thresholds)
+                      RankDistribution, RuleResult, SolveResult, StageGroup,
+                      group_thresholds)
 from .scenario import (FixedPool, PoissonPool, RangePool, Scenario, WeightsPool)
 
 __all__ = [
@@ -149,7 +194,8 @@ __all__ = [
     "CURVE_POINTS",
     "OPENINGS_WORK_MAX",
     "PUSH_BUDGET",
-    "HYPER_BUDGET",
+    "PUSH_FULL",
+    "PUSH_FALLBACK",
 ]
 
 #: Ranks 1..RANK_HEAD are listed one by one in the rank distribution.
@@ -159,11 +205,19 @@ CURVE_FULL_MAX = 2000
 CURVE_POINTS = 1000
 #: Largest (largest pool size) x (openings) solved with several openings.
 OPENINGS_WORK_MAX = 800_000
-#: Work limit (state updates, summed over all rules) for the exact rank distribution.
-PUSH_BUDGET = 4_000_000
-#: Work limit for the hypergeometric top-m table (fixed pools, one opening).
-HYPER_BUDGET = 4_000_000
+#: Work limit (element updates in C loops, summed over all rules) for ranks
+#: 1..R of the rank distribution by prefix sums (:func:`_e_head`), about 3 ms
+#: of CPython; a rule gets at least rank 1 (known sizes: ranks 1..10).
+PUSH_BUDGET = 80_000
+#: Work limit for whole distributions (every rank up to the largest share cut,
+#: for the share columns with uncertain sizes or several openings): pools up to
+#: about 600 candidates, about 25 ms of CPython at most.
+PUSH_FULL = 1_000_000
+#: Work limit of the direct stage-by-stage push (:func:`_push`, several openings
+#: with offers beyond best-so-fars only).
+PUSH_FALLBACK = 300_000
 _TOL = 1e-13
+_LN_2PI = math.log(2.0 * math.pi)
 _CHECKPOINT = 256
 
 
@@ -194,6 +248,7 @@ class _Model:
     x: list[float]          # x[i] = P(abs rank 1 | best so far at stage i)
     t1: list[float]         # t1[i] = sum_{n >= i} prior[n] / n  (= S[i] x[i] / i)
     e: list[float]          # e[i] = (E[N | N >= i] + 1) / (i + 1)
+    ns: list[float]         # ns[i] = sum_{n >= i} n prior[n]  (= S[i] E[N | N >= i])
     fixed_n: int | None     # the size if it is known for sure
     goal: str
     k: int
@@ -203,6 +258,7 @@ class _Model:
     must: bool              # forced offer to the last candidate (known size only)
     mean: float
     reach: int              # largest stage with S > 0
+    cache: dict = field(default_factory=dict)   # derived vectors, see _vec
 
     @property
     def levels(self) -> range:
@@ -210,30 +266,103 @@ class _Model:
 
 
 def _model(s: Scenario) -> _Model:
+    """Prior-derived arrays.  O(M), every loop in C (map / accumulate); a known
+    size N takes the same values from closed forms (S = 1, t1 = 1/N, ns = N,
+    x_i = i (1/N), e_i = (N+1)/(i+1))."""
     prior = pool_prior(s.pool)
     M = len(prior) - 1
-    S = survival(prior)
-    q = [0.0] * (M + 2)
-    for i in range(1, M + 1):
-        q[i] = S[i + 1] / S[i] if S[i] > 0.0 else 0.0
-        if q[i] > 1.0:
-            q[i] = 1.0
-    inv = [prior[n] / n if n > 0 else 0.0 for n in range(M + 1)]
-    t1 = suffix_sums(inv)
-    ns = suffix_sums([n * prior[n] for n in range(M + 1)])
-    x = [0.0] * (M + 2)
-    e = [0.0] * (M + 2)
-    for i in range(1, M + 1):
-        if S[i] > 0.0:
-            x[i] = min(1.0, i * t1[i] / S[i])
-            e[i] = (ns[i] / S[i] + 1.0) / (i + 1.0)
     fixed_n = single_size(prior)
-    reach = max((i for i in range(1, M + 1) if S[i] > 0.0), default=0)
+    if fixed_n is not None and fixed_n == M and M >= 1 and prior[M] == 1.0:
+        N = M
+        S = [1.0] * (N + 1) + [0.0]
+        q = [0.0] + [1.0] * (N - 1) + [0.0, 0.0]
+        invn = 1.0 / N
+        t1 = [invn] * (N + 1) + [0.0]
+        ns = [float(N)] * (N + 1) + [0.0]
+        x = [0.0]
+        x += map(mul, range(1, N + 1), repeat(invn))
+        if x[N] > 1.0:
+            x[N] = 1.0
+        x.append(0.0)
+        e = [0.0]
+        e += map(truediv, repeat(N + 1.0), range(2, N + 2))
+        e.append(0.0)
+        reach = N
+        mean = float(N)
+    else:
+        S = survival(prior)
+        reach = M - S[1:M + 1].count(0.0)       # S is non-increasing: zeros at the tail
+        r = reach
+        pad = [0.0] * (M - r)
+        # S is a suffix sum of non-negative terms, so S[i+1] <= S[i] and q <= 1
+        q = [0.0]
+        q += map(truediv, S[2:r + 2], S[1:r + 1])
+        q += pad
+        q.append(0.0)
+        inv = [0.0]
+        inv += map(truediv, prior[1:], range(1, M + 1))
+        t1 = suffix_sums(inv)
+        nprior = list(map(mul, range(M + 1), prior))
+        ns = suffix_sums(nprior)
+        x = [0.0]
+        x += map(truediv, map(mul, range(1, r + 1), t1[1:r + 1]), S[1:r + 1])
+        if r and max(x) > 1.0:
+            x = [v if v < 1.0 else 1.0 for v in x]
+        x += pad
+        x.append(0.0)
+        e = [0.0]
+        e += map(truediv, map(add, map(truediv, ns[1:r + 1], S[1:r + 1]), repeat(1.0)),
+                 range(2, r + 2))
+        e += pad
+        e.append(0.0)
+        mean = wide_fsum(nprior)
     goal = s.goal.type
     must = bool(s.must_hire) and fixed_n is not None and goal in ("best", "top", "rank")
-    return _Model(M=M, prior=prior, S=S, q=q, x=x, t1=t1, e=e, fixed_n=fixed_n, goal=goal,
-                  k=s.goal.k or 1, p=s.accept_probability, c=s.cost_per_candidate,
-                  m=s.openings, must=must, mean=prior_mean(prior), reach=reach)
+    return _Model(M=M, prior=prior, S=S, q=q, x=x, t1=t1, e=e, ns=ns, fixed_n=fixed_n,
+                  goal=goal, k=s.goal.k or 1, p=s.accept_probability,
+                  c=s.cost_per_candidate, m=s.openings, must=must, mean=mean,
+                  reach=reach)
+
+
+def _vec(md: _Model, name: str) -> list[float]:
+    """Derived per-stage vectors, built once per model (index i = stage, 0 unused).
+
+    ``inv`` 1/i; ``pinv`` p/i; ``fac1`` 1 - p/i; ``sinv`` S_i/i; ``es``
+    e_i S_i / i; ``up`` 1 + 1/i.  O(M) each, in C.
+    """
+    v = md.cache.get(name)
+    if v is not None:
+        return v
+    M = md.M
+    known = md.fixed_n == M and md.S[M] == 1.0      # S_i = 1 for i <= M
+    if name == "inv":
+        v = [0.0]
+        v += map(truediv, repeat(1.0, M + 1), range(1, M + 2))
+    elif name == "pinv":
+        v = [0.0]
+        v += map(truediv, repeat(md.p, M + 1), range(1, M + 2))
+    elif name == "fac1":
+        v = [0.0]
+        v += map(sub, repeat(1.0, M + 1), map(truediv, repeat(md.p, M + 1), range(1, M + 2)))
+    elif name == "sinv":
+        if known:
+            v = _vec(md, "inv")        # S_i / i = 1 / i (the entry M+1 is never read)
+        else:
+            v = [0.0]
+            v += map(truediv, md.S[1:M + 2], range(1, M + 2))
+    elif name == "es":
+        v = [0.0]
+        if known:
+            v += map(truediv, md.e[1:M + 2], range(1, M + 2))
+        else:
+            v += map(mul, md.e[1:M + 2], _vec(md, "sinv")[1:])
+    elif name == "up":
+        v = [0.0]
+        v += map(add, repeat(1.0, M + 1), _vec(md, "inv")[1:])
+    else:  # pragma: no cover - programming error
+        raise KeyError(name)
+    md.cache[name] = v
+    return v
 
 
 # --------------------------------------------------------------------------
@@ -247,46 +376,73 @@ class _Plan:
     md: _Model
     value: float                         # objective incl. cost, whole search
     thr: list[list[int]]                 # thr[l][i], l = 1..m (thr[0] unused)
-    W: list[array]                       # W[l][i], l = 0..m
+    W: list[list[float]]                 # W[l][i], l = 0..m
     gain: list[float] | None = None      # top: sum_{j <= min(t_i,k)} h_i(j)
     h1: list[float] | None = None        # top: h_i(1)
     checkpoints: dict[int, list[float]] = field(default_factory=dict)   # top: h_i
     ties: int = 0
+    runs: dict[int, list[tuple[int, int, int]]] = field(default_factory=dict)  # optimal rule
+    vecs: dict[int, list[float]] = field(default_factory=dict)                  # optimal rule
 
 
-def _dp_best_level(md: _Model, w_prev: array) -> tuple[array, list[int], float, int]:
+def _dp_best_level(md: _Model, w_prev: list[float] | None
+                   ) -> tuple[list[float], list[int], float, int]:
     """One openings-left level of the goal-best DP, given W^{l-1}.  O(M).
 
     ``W_i^l = q_i U_{i+1}^l`` with ``U_i^l = -c + (max(pass, offer_1) +
     (i-1) max(pass, offer_other)) / i``, ``offer_1 = p (x_i + W_i^{l-1}) +
-    (1-p) W_i^l`` and ``offer_other = p W_i^{l-1} + (1-p) W_i^l``.
-    Returns (W^l, thresholds, U_1^l, ties).
+    (1-p) W_i^l`` and ``offer_other = p W_i^{l-1} + (1-p) W_i^l``
+    (``w_prev`` None stands for W^0 = 0).  Returns (W^l, thresholds, U_1^l,
+    ties).  One tight loop over the stages (locals only, zip over reversed
+    slices).  Every value is at most ``B = 1 + c M`` in size, so the
+    tie tolerance ``1e-13 max(1, |offer|, |pass|)`` is at most ``1e-13 B``:
+    differences beyond twice that are decided at once, the rest exactly as
+    :func:`_ge` would.
     """
     M, p, c = md.M, md.p, md.c
-    q, x = md.q, md.x
-    W = array("d", bytes(8 * (M + 2)))
     thr = [0] * (M + 1)
     onep = 1.0 - p
+    tol = _TOL
+    big = 2.0 * tol * (1.0 + c * M + 1.0)          # > 2 tol max(1, |off1|, |pas|)
     u = 0.0
     ties = 0
-    for i in range(M, 0, -1):
-        pas = q[i] * u
-        base = p * w_prev[i] + onep * pas
-        xi = x[i]
-        off1 = base + p * xi
-        sc = _TOL * max(1.0, abs(off1), abs(pas))
-        if xi > 0.0 and off1 >= pas - sc:
-            if off1 <= pas + sc:
-                ties += 1
-            if i > 1 and base > pas + sc:
-                thr[i] = i
-                u = -c + (off1 + (i - 1) * base) / i
-            else:
-                thr[i] = 1
-                u = -c + (off1 + (i - 1) * pas) / i
-        else:
-            u = -c + pas
-        W[i] = pas
+    Wr: list[float] = []
+    app = Wr.append
+    wps = w_prev[M:0:-1] if w_prev is not None else repeat(0.0, M)
+    for i, qi, xi, wi in zip(range(M, 0, -1), md.q[M:0:-1], md.x[M:0:-1], wps):
+        pas = qi * u
+        app(pas)
+        if xi > 0.0:
+            base = p * wi + onep * pas
+            off1 = base + p * xi
+            d = off1 - pas
+            if d > big:
+                # offer to a best-so-far, clearly (no tie); offer to anyone too?
+                e2 = base - pas
+                if i > 1 and (e2 > big or (e2 > -big and base > pas + tol * max(
+                        1.0, abs(off1), abs(pas)))):
+                    thr[i] = i
+                    u = -c + (off1 + (i - 1) * base) / i
+                else:
+                    thr[i] = 1
+                    u = -c + (off1 + (i - 1) * pas) / i
+                continue
+            if d > -big:
+                sc = tol * max(1.0, abs(off1), abs(pas))
+                if off1 >= pas - sc:
+                    if off1 <= pas + sc:
+                        ties += 1
+                    if i > 1 and base > pas + sc:
+                        thr[i] = i
+                        u = -c + (off1 + (i - 1) * base) / i
+                    else:
+                        thr[i] = 1
+                        u = -c + (off1 + (i - 1) * pas) / i
+                    continue
+        u = -c + pas
+    W = [0.0]
+    W += reversed(Wr)
+    W.append(0.0)
     return W, thr, u, ties
 
 
@@ -296,12 +452,12 @@ def _dp_best(md: _Model) -> _Plan:
     Level l needs only W^{l-1} at the same stage, so the levels are swept one
     after the other, each in O(M).
     """
-    W = [array("d", bytes(8 * (md.M + 2)))]
+    W: list[list[float]] = [[0.0] * (md.M + 2)]
     thr: list[list[int]] = [[]]
     ties = 0
     u1 = 0.0
-    for _lv in range(1, md.m + 1):
-        w, t, u1, tl = _dp_best_level(md, W[-1])
+    for lv in range(1, md.m + 1):
+        w, t, u1, tl = _dp_best_level(md, W[-1] if lv > 1 else None)
         W.append(w)
         thr.append(t)
         ties += tl
@@ -321,7 +477,8 @@ def _h_step(h_next: list[float], i: int, qi: float, k: int) -> list[float]:
 def _dp_top(md: _Model) -> _Plan:
     """Goal top-k, one opening.  O(M k) time, O(M + k) memory."""
     M, k, p, c = md.M, md.k, md.p, md.c
-    W = array("d", bytes(8 * (M + 2)))
+    q = md.q
+    W = [0.0] * (M + 2)
     thr = [0] * (M + 1)
     gain = [0.0] * (M + 2)
     h1 = [0.0] * (M + 2)
@@ -329,30 +486,46 @@ def _dp_top(md: _Model) -> _Plan:
     u_next = 0.0
     h: list[float] = []
     ties = 0
+    tol = _TOL
+    onep = 1.0 - p
+    js = range(1, k + 2)
     for i in range(M, 0, -1):
-        qi = md.q[i]
-        L = min(i, k)
-        h = [1.0] * L if i == M else _h_step(h, i, qi, k)
+        qi = q[i]
+        L = i if i < k else k
+        if i == M:
+            h = [1.0] * L
+        else:
+            # _h_step inlined: h_i(j) = (1-q) + q (h(j) + j/(i+1) (h(j+1) - h(j)))
+            a = 1.0 / (i + 1)
+            end = 1.0 - qi
+            nxt = h[1:]
+            if len(nxt) < L:
+                nxt.append(0.0)
+            h = [end + qi * (hj + a * j * (hj1 - hj)) for j, hj, hj1 in zip(js, h, nxt)]
+            if len(h) > L:
+                del h[L:]
         if i % _CHECKPOINT == 0 or i == M:
             ck[i] = h
         wi = qi * u_next
-        lo = wi - _TOL * max(1.0, abs(wi))
+        awi = wi if wi >= 0.0 else -wi
+        sc = tol * (awi if awi > 1.0 else 1.0)
+        lo = wi - sc
         t = 0
         while t < L and h[t] >= lo:
             t += 1
-        if t and h[t - 1] <= wi + _TOL * max(1.0, abs(wi)):
+        if t and h[t - 1] <= wi + sc:
             ties += 1
-        duds = i > L and wi < -_TOL * max(1.0, -wi)   # offering to anyone beats passing
-        g = sum(h[:t])
-        total = p * g + (1.0 - p) * t * wi + (L - t) * wi
-        total += (i - L) * ((1.0 - p) * wi if duds else wi)
+        duds = i > L and wi < -sc                 # offering to anyone beats passing
+        g = sum(h[:t]) if t else 0.0
+        total = p * g + onep * t * wi + (L - t) * wi
+        total += (i - L) * (onep * wi if duds else wi)
         u_next = -c + total / i
         W[i] = wi
         thr[i] = i if duds else t
         gain[i] = g
         h1[i] = h[0]
     value = md.S[1] * u_next
-    return _Plan(md=md, value=value, thr=[[], thr], W=[array("d", bytes(8 * (M + 2))), W],
+    return _Plan(md=md, value=value, thr=[[], thr], W=[[0.0] * (M + 2), W],
                  gain=gain, h1=h1, checkpoints=ck, ties=ties)
 
 
@@ -370,23 +543,45 @@ def _rank_t(wi: float, ei: float, i: int) -> int:
 
 
 def _dp_rank(md: _Model) -> _Plan:
-    """Goal rank (smallest expected rank), one opening.  O(M)."""
+    """Goal rank (smallest expected rank), one opening.  O(M).
+
+    The threshold at stage i is ``floor(W_i / e_i)`` corrected for ties
+    (:func:`_rank_t`).  In the loop the floor is final unless ``W_i / e_i``
+    is within ``1e-11 (1 + W_i / e_i)`` of an integer (then the exact
+    tolerance tests of :func:`_rank_t` run), which is far wider than the
+    relative 1e-13 they allow.
+    """
     M, p, c = md.M, md.p, md.c
-    W = array("d", bytes(8 * (M + 2)))
     thr = [0] * (M + 1)
     u_next = 0.0
     ties = 0
-    for i in range(M, 0, -1):
-        qi, ei = md.q[i], md.e[i]
+    onep = 1.0 - p
+    ph = 0.5 * p
+    Wr: list[float] = []
+    app = Wr.append
+    for i, qi, ei in zip(range(M, 0, -1), md.q[M:0:-1], md.e[M:0:-1]):
         wi = (1.0 - qi) * (i + 1) + qi * u_next
+        app(wi)
+        if ei > 0.0 and wi >= 1.0:
+            r = wi / ei
+            if r < i:
+                t = int(r)
+                fr = r - t
+                dl = 1e-11 * (1.0 + r)
+                if dl < fr < 1.0 - dl:
+                    thr[i] = t
+                    u_next = c + (ph * ei * t * (t + 1) + onep * t * wi + (i - t) * wi) / i
+                    continue
         t = _rank_t(wi, ei, i)
         if t and not _gt(wi, t * ei):
             ties += 1
-        u_next = c + (p * ei * t * (t + 1) / 2.0 + (1.0 - p) * t * wi + (i - t) * wi) / i
-        W[i] = wi
         thr[i] = t
+        u_next = c + (ph * ei * t * (t + 1) + onep * t * wi + (i - t) * wi) / i
+    W = [0.0]
+    W += reversed(Wr)
+    W.append(0.0)
     value = md.prior[0] * 1.0 + md.S[1] * u_next
-    return _Plan(md=md, value=value, thr=[[], thr], W=[array("d", bytes(8 * (M + 2))), W],
+    return _Plan(md=md, value=value, thr=[[], thr], W=[[0.0] * (M + 2), W],
                  ties=ties)
 
 
@@ -414,7 +609,7 @@ def _check(s: Scenario) -> None:
         raise ScenarioError("openings", f"got {s.openings}; goal {g!r} is solved for one "
                                         f"opening only ({why}); use goal \"best\" (the "
                                         "overall best among the hires) for several openings")
-    M = s.pool.max_size
+    M = s.pool.max_size if s.openings > 1 else 0
     if s.openings > 1 and M * s.openings > OPENINGS_WORK_MAX:
         most = max(1, OPENINGS_WORK_MAX // M)
         raise ScenarioError("openings", f"got {s.openings} with up to {M:,} candidates; at "
@@ -435,17 +630,26 @@ def _check(s: Scenario) -> None:
                                 "skip_share)")
 
 
-def _key(s: Scenario) -> str:
-    d = s.to_dict()
-    d.pop("title", None)
-    d.pop("compare", None)
-    return json.dumps(d, sort_keys=True)
+def _key(s: Scenario) -> tuple:
+    """Everything the DP depends on (not the title or the compared rules).
+
+    The scenario's parts are frozen dataclasses, so the tuple hashes and
+    compares by value (a long size_weights tuple hashes in C).
+    """
+    return (s.pool, s.goal, s.scores, s.accept_probability, s.openings,
+            s.cost_per_candidate, s.must_hire)
 
 
-@lru_cache(maxsize=4)
-def _plan_for_key(key: str) -> _Plan:
-    from .scenario import parse_scenario
-    s = parse_scenario(json.loads(key))
+_PLANS: dict[tuple, _Plan] = {}
+_PLANS_MAX = 4
+
+
+def _plan_cache_clear() -> None:
+    """Forget the cached DP tables (benchmarks)."""
+    _PLANS.clear()
+
+
+def _build_plan(s: Scenario) -> _Plan:
     md = _model(s)
     if md.goal == "best":
         return _dp_best(md)
@@ -455,8 +659,17 @@ def _plan_for_key(key: str) -> _Plan:
 
 
 def _plan(s: Scenario) -> _Plan:
+    """The DP for ``s``, cached for the last few scenarios (advice after a
+    solve, or a solve with other compared rules, reuses it)."""
     _check(s)
-    return _plan_for_key(_key(s))
+    key = _key(s)
+    plan = _PLANS.get(key)
+    if plan is None:
+        plan = _build_plan(s)
+        if len(_PLANS) >= _PLANS_MAX:
+            del _PLANS[next(iter(_PLANS))]
+        _PLANS[key] = plan
+    return plan
 
 
 # --------------------------------------------------------------------------
@@ -471,6 +684,125 @@ class _Rule:
     thr: list[list[int]]                  # thr[l][i]
     gain: list[float] | None = None       # top: per-stage sum_{j<=min(t,k)} h_i(j)
     skip: int | None = None
+    runs: dict[int, list[tuple[int, int, int]]] = field(default_factory=dict)
+    vecs: dict[int, list[float]] = field(default_factory=dict)   # _tvec per level
+
+
+#: Up to this many runs the per-run slices are used, above it whole-stage vectors.
+_FEW_RUNS = 12
+
+#: Run codes: 0 pass everyone, 1 offer to a best-so-far, -1 offer to anyone
+#: (t_i >= i >= 2), t >= 2 offer to relative ranks 1..t (t < i).
+_ANYONE = -1
+
+
+def _runs_of(thr: list[int], hi: int) -> list[tuple[int, int, int]]:
+    """Maximal runs ``(first, last, code)`` of stages 1..hi (codes above).
+
+    Change points are found in C (``compress``); the Python loop runs once
+    per run.  When there are many runs (a stage that offers to anyone is a
+    run of its own in ``thr``), the codes themselves are formed in C first,
+    so that stretches of such stages are found in one go.  O(hi).
+    """
+    seg = thr[1:hi + 1]
+    n = len(seg)
+    if n == 0:
+        return []
+    cuts = list(compress(range(1, n), map(ne, seg[1:], seg[:-1])))
+    if len(cuts) > 64:
+        # code = t - (t+1) [t = i] = -1 where anyone is offered (stage 1: t itself)
+        codes = list(map(sub, seg, map(mul, map(add, seg, repeat(1)),
+                                       map(eq, seg, range(1, n + 1)))))
+        codes[0] = seg[0]
+        cuts = list(compress(range(1, n), map(ne, codes[1:], codes[:-1])))
+        return [(a + 1, b, codes[a]) for a, b in zip([0] + cuts, cuts + [n])]
+    out: list[tuple[int, int, int]] = []
+    for a, b in zip([0] + cuts, cuts + [n]):
+        t = seg[a]
+        first, last = a + 1, b
+        if t >= 2 and t >= first:
+            # t = i at stage `first` (t <= i always): offer to anyone there
+            if out and out[-1][2] == _ANYONE and out[-1][1] == first - 1:
+                out[-1] = (out[-1][0], first, _ANYONE)
+            else:
+                out.append((first, first, _ANYONE))
+            if last > first:
+                out.append((first + 1, last, t))
+        else:
+            out.append((first, last, t))
+    return out
+
+
+def _rule_runs(md: _Model, rl: _Rule, lv: int) -> list[tuple[int, int, int]]:
+    r = rl.runs.get(lv)
+    if r is None:
+        r = rl.runs[lv] = _runs_of(rl.thr[lv], md.reach)
+    return r
+
+
+def _rates(md: _Model, rl: _Rule, lv: int) -> list[float]:
+    """h[i] = p t_i / i, the chance that an offer is made and accepted at
+    stage i (given the stage is met at this level), i = 1..reach.  O(M)."""
+    runs = _rule_runs(md, rl, lv)
+    pinv = _vec(md, "pinv")
+    h = [0.0]
+    if len(runs) <= _FEW_RUNS:
+        for s_, e_, t in runs:
+            if t == 0:
+                h += repeat(0.0, e_ - s_ + 1)
+            elif t == 1:
+                h += pinv[s_:e_ + 1]
+            elif t == _ANYONE:
+                h += repeat(md.p, e_ - s_ + 1)
+            else:
+                h += map(mul, pinv[s_:e_ + 1], repeat(float(t)))
+    else:
+        h += map(mul, _tvec(md, rl, lv)[1:], pinv[1:])
+    return h
+
+
+def _tvec(md: _Model, rl: _Rule, lv: int) -> list[float]:
+    """``T[i]`` = number of relative ranks offered at stage i (t_i; i where
+    anyone is offered), i = 1..reach, as floats; built from the runs in C."""
+    v = rl.vecs.get(lv)
+    if v is not None:
+        return v
+    T = [0.0]
+    for s_, e_, t in _rule_runs(md, rl, lv):
+        if t == _ANYONE:
+            T += map(float, range(s_, e_ + 1))
+        else:
+            T += repeat(float(t), e_ - s_ + 1)
+    rl.vecs[lv] = T
+    return T
+
+
+def _no_hire(md: _Model, rl: _Rule, lv: int = 1) -> list[float]:
+    """``A[i]`` = chance of meeting stage i with nobody hired, as if the pool
+    never ended (decisions depend on the stage only), i = 1..reach+1;
+    ``A[i+1] = A[i] (1 - p t_i / i)``: a product, run in C.  O(M)."""
+    runs = _rule_runs(md, rl, lv)
+    if len(runs) <= _FEW_RUNS:
+        p = md.p
+        fac1 = _vec(md, "fac1")
+        f: list[float] = []
+        for s_, e_, t in runs:
+            if t == 0:
+                f += repeat(1.0, e_ - s_ + 1)
+            elif t == 1:
+                f += fac1[s_:e_ + 1]
+            elif t == _ANYONE:
+                f += repeat(1.0 - p, e_ - s_ + 1)
+            else:
+                f += map(sub, repeat(1.0), map(mul, _vec(md, "pinv")[s_:e_ + 1],
+                                               repeat(float(t))))
+        it: Iterable[float] = f
+    else:
+        T = _tvec(md, rl, lv)
+        it = map(sub, repeat(1.0), map(mul, T[1:], _vec(md, "pinv")[1:]))
+    A = [0.0]
+    A += accumulate(it, mul, initial=1.0)
+    return A
 
 
 @dataclass
@@ -483,177 +815,656 @@ class _Core:
     interviews: float
     rank_mass: float | None   # sum P * E[rank] over hires (+ no-hire penalty for rank)
     hire_best: float     # P(a regular hire is the overall best)
-    entry: list[float] | None  # one opening: P(meet stage i with no hire) * p / i
     duds: bool           # some stage offers to anyone (i >= 2)
+    #: mass[l][i] = P(meet stage i with l openings left) as if the pool never
+    #: ended, out[l][i] = the part of it that hires at stage i (l = 1..m);
+    #: for one opening mass[1] is the no-hire chance A of :func:`_no_hire`.
+    mass: dict[int, list[float]] = field(default_factory=dict)
+    out: dict[int, list[float]] = field(default_factory=dict)
+    forced_at: tuple[int, int, float] | None = None   # (N, t_N, p A_N / N) of must_hire
+    rates: dict[int, list[float]] = field(default_factory=dict)  # h[l][i] = p t_i / i
 
 
 def _core1(md: _Model, rl: _Rule) -> _Core:
-    """:func:`_core` for one opening (scalar state).  O(M)."""
-    M, p = md.M, md.p
+    """:func:`_core` for one opening.  O(M), the sums in C.
+
+    With ``A`` from :func:`_no_hire`, the chance of meeting stage i is
+    ``A_i S_i`` and each offered relative rank is hired with ``p A_i S_i / i``;
+    interviews, hires, successes and the rank mass are dot products of ``A``
+    with per-stage vectors (t_i, t_i (t_i+1)/2, and [t_i > 0]).
+    """
+    p, r = md.p, md.reach
     goal, k = md.goal, md.k
+    runs = _rule_runs(md, rl, 1)
+    A = _no_hire(md, rl)
+    S, t1, prior = md.S, md.t1, md.prior
+    sinv, es = _vec(md, "sinv"), _vec(md, "es")
+    known = md.fixed_n == md.M == r and S[r] == 1.0    # S_i = 1, t1_i = 1/N
+    interviews = sum(A[1:r + 1]) if known else sum(map(mul, A[1:r + 1], S[1:r + 1]))
+    duds = any(t == _ANYONE and e_ > k for _s, e_, t in runs)
+    gain = rl.gain if goal == "top" else None
+    hb = hr = rm = ts = 0.0
+    if len(runs) <= _FEW_RUNS:
+        for s_, e_, t in runs:
+            if t == 0:
+                continue
+            a = A[s_:e_ + 1]
+            hb += sum(a) * t1[1] if known else sum(map(mul, a, t1[s_:e_ + 1]))
+            if t == 1:
+                hr += sum(map(mul, a, sinv[s_:e_ + 1]))
+                rm += sum(map(mul, a, es[s_:e_ + 1]))
+            elif t == _ANYONE:
+                # all i ranks offered: t(t+1)/2 e_i S_i / i = (ns_i + S_i) / 2
+                hr += sum(map(mul, a, S[s_:e_ + 1]))
+                rm += 0.5 * sum(map(mul, a, map(add, md.ns[s_:e_ + 1], S[s_:e_ + 1])))
+            else:
+                hr += t * sum(map(mul, a, sinv[s_:e_ + 1]))
+                rm += (0.5 * t * (t + 1)) * sum(map(mul, a, es[s_:e_ + 1]))
+            if gain is not None:
+                ts += sum(map(mul, map(mul, a, sinv[s_:e_ + 1]), gain[s_:e_ + 1]))
+    else:
+        T = _tvec(md, rl, 1)
+        f0 = next(s_ for s_, _e, t in runs if t != 0)
+        if known:
+            hb = t1[1] * sum(compress(A[f0:r + 1], T[f0:r + 1]))
+        else:
+            hb = sum(compress(map(mul, A[f0:r + 1], t1[f0:r + 1]), T[f0:r + 1]))
+        AS = list(map(mul, A[f0:r + 1], sinv[f0:r + 1]))        # A_i S_i / i
+        hr = sum(map(mul, AS, T[f0:r + 1]))
+        # t (t+1) / 2 e_i S_i / i
+        rm = 0.5 * sum(map(mul, map(mul, A[f0:r + 1], es[f0:r + 1]),
+                           map(mul, T[f0:r + 1], map(add, T[f0:r + 1], repeat(1.0)))))
+        if gain is not None:
+            ts = sum(map(mul, AS, gain[f0:r + 1]))
+    hire_best = p * hb
+    succ = hire_best if goal == "best" else p * ts if goal == "top" else 0.0
+    hires = p * hr
+    rank_mass = p * rm
+    forced = fsucc = fc = 0.0
+    forced_at = None
     N = md.fixed_n if md.must else -1
-    is_top, is_best, is_rank = goal == "top", goal == "best", goal == "rank"
-    thr = rl.thr[1]
-    gain = rl.gain
-    x, e, q = md.x, md.e, md.q
-    A = md.S[1]
-    succ = fsucc = hires = forced = interviews = hire_best = rank_mass = 0.0
-    none = md.prior[0]
-    if is_rank:
-        rank_mass = md.prior[0] * 1.0
-    entry = [0.0] * (M + 2)
-    duds = False
-    for i in range(1, md.reach + 1):
-        interviews += A
-        wp = A * p / i
-        entry[i] = wp
-        t = thr[i]
-        if t:
-            xi = x[i]
-            hire_best += wp * xi
-            if is_best:
-                succ += wp * xi
-            elif is_top and gain is not None:
-                succ += wp * gain[i]
-            rank_mass += wp * e[i] * t * (t + 1) * 0.5
-            if t >= i > k:
-                duds = True
-        move = wp * t
-        if i == N and t < i:
-            fc = wp * (i - t)
-            forced += fc
-            move += fc
-            rank_mass += wp * e[i] * (i * (i + 1) - t * (t + 1)) * 0.5
-            if is_top:
-                fsucc += wp * max(0, min(k, i) - t)
-            elif is_best and t == 0:
-                fsucc += wp * x[i]
-        hires += move
-        A -= move
-        qi = q[i]
-        if qi < 1.0:
-            end = A * (1.0 - qi)
-            none += end
-            if is_rank:
-                rank_mass += end * (i + 1)
-            A *= qi
+    if N > 0 and rl.thr[1][N] < N:
+        t = rl.thr[1][N]
+        wp = A[N] * p / N
+        fc = wp * (N - t)
+        forced = fc
+        hires += fc
+        rank_mass += wp * md.e[N] * (N * (N + 1) - t * (t + 1)) * 0.5
+        if goal == "top":
+            fsucc = wp * max(0, min(k, N) - t)
+        elif goal == "best" and t == 0:
+            fsucc = wp * md.x[N]
+        forced_at = (N, t, wp)
+    # the search ends at stage i (N = i) with nobody hired: prior[i] A[i+1]
+    if known:
+        none = A[r + 1] - fc
+        if goal == "rank":
+            rank_mass += (A[r + 1] - fc) * (r + 1)
+    else:
+        none = prior[0] + sum(map(mul, prior[1:r + 1], A[2:r + 2])) - fc
+        if goal == "rank":
+            rank_mass += prior[0] * 1.0 + sum(map(mul, map(mul, prior[1:r + 1],
+                                                           A[2:r + 2]),
+                                                  range(2, r + 2))) - fc * (N + 1)
     return _Core(succ=succ, fsucc=fsucc, hires=hires, forced=forced, none=none,
                  interviews=interviews, rank_mass=rank_mass, hire_best=hire_best,
-                 entry=entry, duds=duds)
+                 duds=duds, mass={1: A}, forced_at=forced_at)
 
 
 def _core(md: _Model, rl: _Rule) -> _Core:
     """Exact outcome of a threshold rule.  O(M m).
 
-    Pushes P(meet stage i with l openings left) forward; several openings
-    occur with goal best only (success adds up over hires, see the module
-    docstring), one opening goes to :func:`_core1`.
+    Pushes P(meet stage i with l openings left) forward, one level after the
+    other (a tight loop per level; the level with every opening left is a
+    product, run in C); several openings occur with goal best only (success
+    adds up over hires, see the module docstring), one opening goes to
+    :func:`_core1`.
     """
     if md.m == 1:
         return _core1(md, rl)
-    m, p = md.m, md.p
+    m, p, r = md.m, md.p, md.reach
     N = md.fixed_n if md.must else -1
-    x, q = md.x, md.q
-    thr = rl.thr
-    P = [0.0] * (m + 1)
-    P[m] = md.S[1]
+    S, t1, prior = md.S, md.t1, md.prior
+    mass: dict[int, list[float]] = {}
+    out: dict[int, list[float]] = {}
+    rates: dict[int, list[float]] = {}
     succ = fsucc = hires = forced = interviews = 0.0
-    none = md.prior[0]
     duds = False
-    for i in range(1, md.reach + 1):
-        xi = x[i]
-        pi = p / i
-        for lv in range(1, m + 1):
-            w = P[lv]
-            if w == 0.0:
-                continue
-            interviews += w
-            t = thr[lv][i]
-            wp = w * pi
-            move = wp * t
-            if t:
-                succ += wp * xi
-                if t >= i > 1:
+    inflow: list[float] | None = None
+    forced_at = None
+    known = md.fixed_n == md.M == r and S[r] == 1.0    # S_i = 1, t1_i = 1/N
+    for lv in range(m, 0, -1):
+        runs = _rule_runs(md, rl, lv)
+        h = _rates(md, rl, lv)
+        if inflow is None:
+            a = [0.0]
+            a += accumulate(map(sub, repeat(1.0, r), h[1:]), mul, initial=1.0)
+        else:
+            a = [0.0]
+            cur = 0.0
+            app = a.append
+            for hi, gi in zip(h[1:], inflow[1:]):
+                app(cur)
+                cur = cur - cur * hi + gi
+            app(cur)
+        o = [0.0]
+        o += map(mul, a[1:r + 1], h[1:])
+        if lv == m and N > 0 and rl.thr[m][N] < N:
+            t = rl.thr[m][N]
+            wp = a[N] * p / N
+            fc = wp * (N - t)
+            forced += fc
+            hires += fc
+            if t == 0:
+                fsucc += wp * md.x[N]
+            forced_at = (N, t, wp)
+        if known:
+            interviews += sum(a[1:r + 1])
+            hires += sum(o)
+        else:
+            interviews += sum(map(mul, a[1:r + 1], S[1:r + 1]))
+            hires += sum(map(mul, o[1:], S[1:r + 1]))
+        for s_, e_, t in runs:
+            if t != 0:
+                succ += (sum(a[s_:e_ + 1]) * t1[1] if known else
+                         sum(map(mul, a[s_:e_ + 1], t1[s_:e_ + 1])))
+                if t == _ANYONE and any(a[s_:e_ + 1]):
                     duds = True
-            if i == N and lv == m and t < i:
-                fc = wp * (i - t)
-                forced += fc
-                move += fc
-                if t == 0:
-                    fsucc += wp * xi
-            if move:
-                hires += move
-                P[lv] = w - move
-                P[lv - 1] += move
-        P[0] = 0.0
-        qi = q[i]
-        if qi < 1.0:
-            none += P[m] * (1.0 - qi)
-            for lv in range(1, m + 1):
-                P[lv] *= qi
+        mass[lv], out[lv] = a, o
+        rates[lv] = h
+        inflow = o
+    succ *= p
+    fc = forced_at[2] * (N - forced_at[1]) if forced_at else 0.0
+    none = prior[0] + sum(map(mul, prior[1:r + 1], mass[m][2:r + 2])) - fc
     return _Core(succ=succ, fsucc=fsucc, hires=hires, forced=forced, none=none,
-                 interviews=interviews, rank_mass=None, hire_best=succ,
-                 entry=None, duds=duds)
+                 interviews=interviews, rank_mass=None, hire_best=succ, duds=duds,
+                 mass=mass, out=out, forced_at=forced_at, rates=rates)
 
 
-def _moment_rank(md: _Model, rl: _Rule) -> float | None:
+def _beyond_best(md: _Model, rl: _Rule, core: _Core, levels: range) -> bool:
+    """Some level in ``levels`` offers to more than best-so-fars at a stage it
+    can be at (mass > 0)."""
+    for lv in levels:
+        a = core.mass[lv]
+        for s_, e_, t in _rule_runs(md, rl, lv):
+            if t not in (0, 1) and any(a[s_:e_ + 1]):
+                return True
+    return False
+
+
+def _moment_rank(md: _Model, rl: _Rule, core: _Core | None = None) -> float | None:
     """Expected rank of the best hire, several openings, best-so-far rules.
 
     Valid when every offer goes to a best-so-far (thresholds 0 or 1): the
     newest hire is then the best one, and the mean of the Markov chain of its
-    relative rank evolves linearly.  O(M m).  Returns E[rank | a hire].
+    relative rank evolves linearly: at level l, ``mom' = mom (1 + (1 - p t)/i)
+    - hires_out + hires_in`` (a new best hire has relative rank 1).  One tight
+    loop per level with an opening left, a prefix sum for the last level,
+    O(M m).  Returns E[rank | a hire].
     """
-    M, m, p = md.M, md.m, md.p
-    N = md.fixed_n if md.must else None
-    mass = [0.0] * (m + 1)      # P(meet stage with l left); for l < m a hire exists
-    mom = [0.0] * (m + 1)       # sum of P * current relative rank of the best hire
-    mass[m] = md.S[1]
-    fin = 0.0
-    hired = 0.0
-    for i in range(1, md.reach + 1):
-        pi = p / i
-        g = 1.0 + 1.0 / i
-        g1 = 1.0 + (1.0 - p) / i
-        nm = [0.0] * (m + 1)
-        nmo = [0.0] * (m + 1)
-        nm[0] = mass[0]
-        nmo[0] = mom[0] * g
-        for lv in range(1, m + 1):
-            w, mo = mass[lv], mom[lv]
-            if w == 0.0:
-                continue
-            t = rl.thr[lv][i]
-            if t > 1 and i >= 2:
-                return None
-            if lv == m:
-                hp = w * pi * t
-                nm[m] += w - hp
-                nm[m - 1] += hp
-                nmo[m - 1] += hp * 1.0
-                if N is not None and i == N and t < i:
-                    fc = w * pi * (i - t)
-                    nm[m] -= fc
-                    nm[m - 1] += fc
-                    nmo[m - 1] += w * pi * (i * (i + 1) - t * (t + 1)) / 2.0
-            elif t == 1:
-                nm[lv] += w * (1.0 - pi)
-                nmo[lv] += mo * g1 - pi * w
-                nm[lv - 1] += w * pi
-                nmo[lv - 1] += w * pi
-            else:
-                nm[lv] += w
-                nmo[lv] += mo * g
-        mass, mom = nm, nmo
-        end = 1.0 - md.q[i]
-        if end > 0.0:
-            qi = md.q[i]
-            for lv in range(0, m):
-                fin += end * mom[lv]
-                hired += end * mass[lv]
-                mass[lv] *= qi
-                mom[lv] *= qi
-            mass[m] *= qi
+    m, r = md.m, md.reach
+    if core is None or not core.out:
+        core = _core(md, rl)
+    if _beyond_best(md, rl, core, md.levels):
+        return None
+    up, prior = _vec(md, "up"), md.prior
+    fin = hired = 0.0
+    inflow = core.out[m][:]
+    inmom = inflow[:]
+    if core.forced_at is not None:
+        N, t, wp = core.forced_at
+        inflow[N] += wp * (N - t)
+        inmom[N] += wp * (N * (N + 1) - t * (t + 1)) / 2.0
+    known = md.fixed_n == md.M == r and md.S[r] == 1.0     # prior = [N = r]
+    for lv in range(m - 1, 0, -1):
+        h = core.rates.get(lv) or _rates(md, rl, lv)
+        a, o = core.mass[lv], core.out[lv]
+        mo = [0.0]
+        cur = 0.0
+        app = mo.append
+        for ci, di in zip(map(sub, up[1:r + 1], h[1:]), map(sub, inmom[1:], o[1:])):
+            app(cur)
+            cur = cur * ci + di
+        app(cur)
+        if known:
+            fin += mo[r + 1]
+            hired += a[r + 1]
+        else:
+            fin += sum(map(mul, prior[1:r + 1], mo[2:r + 2]))
+            hired += sum(map(mul, prior[1:r + 1], a[2:r + 2]))
+        if lv == m - 1 and core.forced_at is not None:
+            N, t, wp = core.forced_at          # the forced hire joins after stage N
+            hired += prior[N] * wp * (N - t)
+        inflow = o
+        inmom = o
+    # level 0 (every opening filled): mom' = mom (1 + 1/i) + in_i, i.e.
+    # mom_{i+1} / (i+1) = mom_i / i + in_i / (i+1): a prefix sum
+    nu = list(accumulate(map(truediv, inmom[1:r + 1], range(2, r + 2)), initial=0.0))
+    a0 = list(accumulate(inflow[1:r + 1], initial=0.0))        # a0[i] = mass after stage i
+    if known:
+        fin += (r + 1) * nu[r]
+        hired += a0[r]
+    else:
+        fin += sum(map(mul, map(mul, prior[1:r + 1], nu[1:r + 1]), range(2, r + 2)))
+        hired += sum(map(mul, prior[1:r + 1], a0[1:r + 1]))
     return fin / hired if hired > 0.0 else None
+
+
+# --------------------------------------------------------------------------
+# the rank of the hire: exact distribution and "among the best m" table
+# --------------------------------------------------------------------------
+
+def _tau_head(md: _Model, rl: _Rule, core: _Core, R: int) -> list[float]:
+    """P(hire's rank = a), a = 1..R: known pool size N, one opening, every
+    stage passes, offers to best-so-fars or offers to anyone.  O(M + R runs).
+
+    A hire at stage i that is best so far has rank a with chance
+    ``C(N-a, i-1) / C(N, i) = (i/N) C(N-i, a-1) / C(N-1, a-1)``, so a run
+    s..e of best-so-far stages gives ``P(a) = (p/N) tau(a)`` with
+    ``tau(a) = sum_{i=s}^{e} A_i C(N-i, a-1) / C(N-1, a-1)``.  Inside the run
+    ``i A_{i+1} = (i - p) A_i``; summing by parts turns this into the
+    first-order recurrence (derived in the module docstring)
+
+        tau(a+1) = a / (a+1-p) * (tau(a) - delta_a),
+        delta_a = ((s-1) A_s rho_s(a) - e A_{e+1} rho_e(a)) / a,
+        rho_s(a) = C(N-s+1, a) / C(N-1, a),  rho_e(a) = C(N-e, a) / C(N-1, a),
+
+    with ``tau(1) = sum_{i in run} A_i``: O(1) per rank and run, no binomial
+    coefficient formed (the factor a/(a+1-p) <= 1 damps rounding errors).  A
+    stage that offers to anyone hires a uniformly random candidate (rank
+    uniform on 1..N); the forced last offer of must_hire hires rank j for
+    each j > t_N with chance p A_N / N.
+    """
+    N = md.fixed_n
+    assert N is not None
+    p = md.p
+    A = core.mass[1]
+    runs = _rule_runs(md, rl, 1)
+    state = []
+    anyone = 0.0
+    first_run = False
+    for s_, e_, t in runs:
+        if t == 1:
+            state.append([s_, e_, sum(A[s_:e_ + 1]), 1.0, 1.0, (s_ - 1) * A[s_],
+                          e_ * A[e_ + 1]])
+            first_run = first_run or s_ == 1
+        elif t == _ANYONE:
+            anyone += sum(A[s_:e_ + 1])
+    uni = p * anyone / N
+    pN = p / N
+    ft, fw = (core.forced_at[1], core.forced_at[2]) if core.forced_at else (N, 0.0)
+    out: list[float] = []
+    for a in range(1, R + 1):
+        if a < N:
+            v = pN * math.fsum(st[2] for st in state) if len(state) > 1 else \
+                pN * (state[0][2] if state else 0.0)
+        else:                                # rank N: best so far only at stage 1
+            v = pN * A[1] if first_run else 0.0
+        v += uni
+        if a > ft:
+            v += fw
+        out.append(v)
+        if a + 1 <= R and a + 1 < N:
+            den = 1.0 / (N - a)
+            cf = a / (a + 1.0 - p)
+            for st in state:
+                s_, e_ = st[0], st[1]
+                st[3] *= (N - s_ + 2 - a) * den      # rho_s(a)
+                st[4] *= (N - e_ + 1 - a) * den      # rho_e(a)
+                st[2] = cf * (st[2] - (st[5] * st[3] - st[6] * st[4]) / a)
+    return out
+
+
+def _log_choose(n: int, k: int) -> float:
+    return math.lgamma(n + 1.0) - math.lgamma(k + 1.0) - math.lgamma(n - k + 1.0)
+
+
+def _rank_max_e(hi: int, R: int) -> int:
+    """Largest R' <= R with R' C(hi, R') < 1e300 (the sums below stay finite)."""
+    lo_, top = 0, min(R, hi)
+    while lo_ < top:
+        mid = (lo_ + top + 1) // 2
+        if math.log(mid) + _log_choose(hi, mid) < 690.0:
+            lo_ = mid
+        else:
+            top = mid - 1
+    return lo_
+
+
+def _e_support(md: _Model) -> tuple[int, int]:
+    """The pool sizes n >= 1 with prior[n] > 0 lie in lo..hi."""
+    hi = md.reach
+    lo = next((n for n in range(1, hi + 1) if md.prior[n] > 0.0), hi)
+    return lo, hi
+
+
+def _e_lo(md: _Model, rl: _Rule) -> int | None:
+    """First stage at which a hire can happen (None: never)."""
+    lo = next((s_ for s_, _e, t in _rule_runs(md, rl, md.m) if t != 0), None)
+    if md.must and md.fixed_n is not None and rl.thr[md.m][md.fixed_n] < md.fixed_n:
+        lo = md.fixed_n if lo is None else min(lo, md.fixed_n)
+    return lo
+
+
+def _e_cost(md: _Model, rl: _Rule) -> int:
+    """Work units (element updates) per rank of :func:`_e_head`."""
+    lo = _e_lo(md, rl)
+    if lo is None:
+        return 1
+    L = md.reach - lo + 1
+    g = sum(e_ - s_ + 1 for s_, e_, t in _rule_runs(md, rl, md.m) if t not in (0, 1))
+    cost = 2 * L * md.m + 3 * g
+    if md.fixed_n is None:
+        nlo, hi = _e_support(md)
+        cost += 2 * (hi - max(nlo, lo) + 1)
+    return cost
+
+
+def _masks(runs: list[tuple[int, int, int]], lo: int
+           ) -> list[tuple[int, int, int]]:
+    """Maximal stretches (first, last, max rank) of stages lo.. that offer
+    relative ranks >= 2 to a first hire: ``(s, e, t)`` means ranks 2..t at
+    stage s..e (t = 0: "every rank <= i", offers to anyone)."""
+    out: list[tuple[int, int, int]] = []
+    for s_, e_, t in runs:
+        if t in (0, 1) or e_ < lo:
+            continue
+        out.append((max(s_, lo), e_, 0 if t == _ANYONE else t))
+    return out
+
+
+def _e_head(md: _Model, rl: _Rule, core: _Core, R: int,
+            cuts: dict[float, list[int]] | None = None
+            ) -> tuple[list[float], dict[float, float]]:
+    """P(rank of the (best) hire = a), a = 1..R, any pool, by prefix sums.
+
+    Let ``D_i^l(a)`` be the chance (as if the pool never ended) that after
+    stage i there are l openings left and the best hire has relative rank a.
+    Between stages a hire of relative rank a moves to a+1 with chance a/i
+    (a better newcomer), at levels l >= 1 minus the p t/i that a new
+    best-so-far is hired (thresholds 0/1 there), plus new hires.  In
+    ``E_i(a) = a C(i, a) D_i(a)`` the stay factors ``1 - a/i`` telescope
+    and each rank is a prefix sum of the rank below:
+
+        E_i(a) = E_{i-1}(a) + E_{i-1}(a-1) (1 - p t_i / (a-1)) + Y_i(a),
+
+    ``Y_i(a) = p A_i C(i-1, a-1)`` for every offered relative rank a <= t_i
+    of the first hire (A = chance of no hire yet) and ``i out_i`` at a = 1
+    for the later hires; the search ending at stage n gives ``P(a) =
+    sum_n prior[n] E_n(a) / (a C(n, a))``.  Exact (sums of non-negative
+    terms), O(M m) per rank, a few passes in C; R is kept below where
+    ``a C(M, a)`` would overflow.  ``cuts[x][n]`` (when given) is the share
+    cut ``max(1, floor(x n))``; then the second return value is
+    ``sum_n prior[n] P(rank <= cut | N = n)`` over the computed ranks.
+    """
+    m, p = md.m, md.p
+    prior = md.prior
+    hi = md.reach
+    shares = {x: 0.0 for x in (cuts or {})}
+    lo = _e_lo(md, rl)
+    if lo is None:
+        return [0.0] * R, shares
+    L = hi - lo + 1
+    top_runs = _rule_runs(md, rl, m)
+    A = core.mass[m]
+    # rank 1 of the first hire: p A_i at every stage that makes an offer
+    y1 = [0.0] * L
+    for s_, e_, t in top_runs:
+        if t != 0 and e_ >= lo:
+            s0 = max(s_, lo)
+            y1[s0 - lo:e_ - lo + 1] = map(mul, A[s0:e_ + 1], repeat(p))
+    masks = _masks(top_runs, lo)
+    # V[j] = p A_i C(i-1, a-1) over the stages that offer ranks >= 2 (i = lo + j)
+    V = y1[:] if masks else []
+    forced = core.forced_at
+    fv = 0.0
+    if forced is not None:
+        N, tN, wp = forced
+        fv = wp * N                     # p A_N C(N-1, a-1) at a = 1
+        if tN == 0:
+            y1[N - lo] += fv
+    # levels with a hire: level m-1 gets the first hire, level l < m-1 gets
+    # (at rank 1) the hires out of level l+1
+    E: dict[int, list[float]] = {m - 1: list(accumulate(y1))}
+    for lv in range(m - 2, -1, -1):
+        o = core.out[lv + 1]
+        E[lv] = list(accumulate(map(mul, o[lo:hi + 1], range(lo, hi + 1))))
+    acc_runs: dict[int, list[tuple[int, int]]] = {
+        lv: [(max(s_, lo) - lo, e_ - lo + 1) for s_, e_, t in _rule_runs(md, rl, lv)
+             if t == 1 and e_ >= lo] for lv in range(1, m)}
+    fixed = md.fixed_n
+    if fixed is None:
+        nlo, _nhi = _e_support(md)
+        w0 = max(nlo, lo)
+        # om[n - w0] = prior[n] / (a C(n, a)) for n = w0..hi, w0 >= a
+        om = list(map(truediv, prior[w0:hi + 1], range(w0, hi + 1)))
+        cut_n = {x: w0 for x in shares}      # smallest n with cut(n) >= a
+    out: list[float] = []
+    cn = float(fixed) if fixed else 0.0        # a C(N, a) at a = 1
+    for a in range(1, R + 1):
+        if a > 1:
+            a1 = a - 1
+            inv_a1 = 1.0 / a1
+            for lv in range(m - 1, -1, -1):
+                prev = E[lv]
+                live = lv == m - 1 and (masks or (forced is not None and a > forced[1]))
+                if lv == 0 and not live:
+                    # no new hires at this rank: a shifted prefix sum
+                    E[0] = list(accumulate(islice(prev, L - 1), initial=0.0))
+                    continue
+                inc = [0.0]
+                inc += islice(prev, L - 1)
+                if lv >= 1:
+                    cf = 1.0 - p / a1
+                    for j0, j1 in acc_runs[lv]:
+                        inc[j0:j1] = map(mul, inc[j0:j1], repeat(cf))
+                if lv == m - 1:
+                    # stages that still offer rank a, merged into maximal stretches
+                    masks = [mk for mk in masks if not (mk[2] and a > mk[2])]
+                    stretch: list[list[int]] = []
+                    for s_, e_, _t in masks:
+                        if stretch and stretch[-1][1] == s_ - 1:
+                            stretch[-1][1] = e_
+                        else:
+                            stretch.append([s_, e_])
+                    for s_, e_ in stretch:
+                        j0, j1 = s_ - lo, e_ - lo + 1
+                        # C(i-1, a-1) = C(i-1, a-2) (i-a+1) / (a-1)
+                        V[j0:j1] = map(mul, map(mul, V[j0:j1], range(s_ - a1, e_ - a1 + 1)),
+                                       repeat(inv_a1))
+                        inc[j0:j1] = map(add, inc[j0:j1], V[j0:j1])
+                    if forced is not None:
+                        N, tN, wp = forced
+                        fv *= (N - a1) * inv_a1
+                        if a > tN:
+                            inc[N - lo] += fv
+                E[lv] = list(accumulate(inc))
+        if fixed is not None:
+            if a > 1:
+                cn *= (fixed - a + 1) / (a - 1)     # a C(N, a) from (a-1) C(N, a-1)
+            j = fixed - lo
+            v = math.fsum(E[lv][j] for lv in range(m)) / cn if m > 1 else E[0][j] / cn
+        else:
+            if a > 1:
+                # prior[n] / (a C(n, a)) = previous * (a-1) / (n-a+1), n >= a
+                if w0 < a:
+                    del om[:a - w0]
+                    w0 = a
+                om = list(map(mul, om, map(truediv, repeat(float(a - 1)),
+                                           range(w0 - a + 1, hi - a + 2))))
+            j0 = w0 - lo
+            if m == 1:
+                tot: Iterable[float] = islice(E[0], j0, None)
+            else:
+                tot = E[0][j0:]
+                for lv in range(1, m):
+                    tot = list(map(add, tot, islice(E[lv], j0, None)))
+            if shares:
+                prod = list(map(mul, om, tot))
+                v = sum(prod)
+                for x in shares:
+                    # n with cut(n) >= a: a suffix of n (cut is non-decreasing)
+                    cx = cuts[x]  # type: ignore[index]
+                    n_ = max(cut_n[x], w0)
+                    while n_ <= hi and cx[n_] < a:
+                        n_ += 1
+                    cut_n[x] = n_
+                    if n_ <= hi:
+                        shares[x] += sum(prod[n_ - w0:])
+            else:
+                v = sum(map(mul, om, tot))
+        out.append(v)
+    return out, shares
+
+
+def _dbinom_raw(x: int, n: int, p: float, q: float) -> float:
+    """Binomial pmf b(x; n, p) with q = 1-p, relative error ~1e-15 (Loader 2000)."""
+    if x < 0 or x > n:
+        return 0.0
+    if p == 0.0:
+        return 1.0 if x == 0 else 0.0
+    if q == 0.0:
+        return 1.0 if x == n else 0.0
+    if x == 0:
+        if n == 0:
+            return 1.0
+        lc = -_bd0(n, n * q) - n * p if p < 0.1 else n * math.log(q)
+        return math.exp(lc)
+    if x == n:
+        lc = -_bd0(n, n * p) - n * q if q < 0.1 else n * math.log(p)
+        return math.exp(lc)
+    lc = (_stirlerr(n) - _stirlerr(x) - _stirlerr(n - x) - _bd0(x, n * p)
+          - _bd0(n - x, n * q))
+    lf = _LN_2PI + math.log(x) + math.log1p(-x / n)
+    return math.exp(lc - 0.5 * lf)
+
+
+def _dhyper(h: int, K: int, i: int, N: int) -> float:
+    """P(H = h), H = how many of the best K are among the first i of N
+    (hypergeometric), as a ratio of binomial pmfs (Loader 2000)."""
+    p = i / N
+    q = (N - i) / N
+    return (_dbinom_raw(h, K, p, q) * _dbinom_raw(i - h, N - K, p, q)
+            / _dbinom_raw(i, N, p, q))
+
+
+def _min_mean(t: int, K: int, i: int, N: int) -> float:
+    """E[min(H, t)] for H ~ Hypergeometric(N, K, i), 1 <= t < min(K, i).
+
+    Hoeffding (1963) bounds P(H <= mu - y) and P(H >= mu + y) by
+    exp(-2 y^2 / min(i, K)); where they are below e^-80 the sum is cut
+    (error below t e^-80).  Otherwise ``t - sum_{h<t} (t-h) P(H = h)`` over
+    h within sqrt(40 min(i, K)) of the mean, walking down from P(H = t-1).
+    """
+    mu = i * K / N
+    w = min(i, K)
+    y = math.sqrt(40.0 * w)
+    h_min = i - (N - K) if i > N - K else 0
+    if h_min >= t:
+        return float(t)
+    if mu - (t - 1) > y:
+        return float(t)               # P(H < t) < e^-80
+    if t - mu > y:
+        return mu                     # P(H > t) < e^-80: min(H, t) = H
+    h_lo = max(h_min, int(math.floor(mu - y)))
+    h = t - 1
+    pr = _dhyper(h, K, i, N)
+    acc = 0.0
+    while True:
+        acc += (t - h) * pr
+        if h <= h_lo or pr == 0.0:
+            break
+        pr *= h * (N - K - i + h) / ((K - h + 1.0) * (i - h + 1.0))
+        h -= 1
+    return t - acc
+
+
+def _sure(t: int, K: int, i: int, N: int) -> bool:
+    """The first shortcut of :func:`_min_mean`: mu - (t-1) > sqrt(40 min(i, K))."""
+    return i * K / N - (t - 1) > math.sqrt(40.0 * min(i, K))
+
+
+def _sure_from(t: int, K: int, N: int) -> int:
+    """Smallest stage i with :func:`_sure` (it then holds for every later i).
+
+    ``g(i) = iK/N - (t-1) - sqrt(40 min(i, K))`` is continuous and crosses
+    zero once (with u = sqrt(i) it is a quadratic in u below K, linear above),
+    so the crossing comes from the closed form and is then moved to the
+    exact boundary of the floating-point test.
+    """
+    r = K / N
+    b = math.sqrt(40.0)
+    u = (b + math.sqrt(40.0 + 4.0 * r * (t - 1))) / (2.0 * r)
+    i = int(u * u)
+    if i >= K:
+        i = int((t - 1 + math.sqrt(40.0 * K)) / r)
+    i = max(1, i - 2)
+    while not _sure(t, K, i, N):
+        i += 1
+    while i > 1 and _sure(t, K, i - 1, N):
+        i -= 1
+    return i
+
+
+def _fixed_tails(md: _Model, rl: _Rule, core: _Core, keys: list[int]) -> dict[int, float]:
+    """P(hire's rank <= K) for a known pool size N, one opening, any rule.
+
+    ``P(rank <= K | relative rank j at stage i) = P(H >= j)``, H the number of
+    the best K among the first i (hypergeometric), so a stage offering ranks
+    1..t contributes ``p A_i / i * E[min(H_i, t)]``: ``1 - P(H_i = 0)`` for a
+    best-so-far (``P(H_i = 0) = prod_{l<i} (N-K-l)/(N-l) <= (1 - K/N)^i``, cut
+    once below 1e-35), ``i K / N`` for anyone, :func:`_min_mean` otherwise
+    (which is t from the stage :func:`_sure_from` on).  O(runs) per K plus
+    the stages where a tail is not negligible: usually O(N / K) per K.
+    """
+    N = md.fixed_n
+    assert N is not None
+    p = md.p
+    A = core.mass[1]
+    inv = _vec(md, "inv")
+    runs = [(s_, e_, t, sum(map(mul, A[s_:e_ + 1], inv[s_:e_ + 1])), sum(A[s_:e_ + 1]))
+            for s_, e_, t in _rule_runs(md, rl, 1) if t != 0]
+    out: dict[int, float] = {}
+    for K in keys:
+        if K >= N:
+            out[K] = 1.0 - core.none
+            continue
+        acc = 0.0
+        lq = math.log1p(-K / N)                    # log of the bound's ratio
+        for s_, e_, t, sai, sa in runs:
+            if t == 1:
+                acc += p * sai
+                # minus p A_i / i P(H_i = 0), while it matters
+                if s_ > N - K or s_ * lq < -80.6:           # (1-K/N)^s < 1e-35
+                    continue
+                p0 = math.prod(map(truediv, range(N - K, N - K - s_, -1),
+                                   range(N, N - s_, -1)))
+                if p0 < 1e-35:
+                    continue
+                ratio = (N - K - s_) / (N - s_)
+                if ratio <= 0.0:
+                    stop = s_
+                else:
+                    stop = min(e_, s_ + int(math.log(1e-35 / p0) / math.log(ratio)) + 1)
+                vals = list(accumulate(map(truediv, range(N - K - s_, N - K - stop, -1),
+                                           range(N - s_, N - stop, -1)), mul, initial=p0))
+                acc -= p * sum(map(mul, map(mul, A[s_:stop + 1], inv[s_:stop + 1]), vals))
+            elif t == _ANYONE or t >= K:
+                acc += p * K / N * sa
+            elif _sure(t, K, s_, N):
+                acc += p * t * sai             # P(H < t) < e^-80 on the whole run
+            else:
+                # from stage i0 on P(H < t) < e^-80 (see _min_mean): E[min(H, t)] = t
+                i0 = max(s_, min(e_ + 1, _sure_from(t, K, N)))
+                if i0 <= e_:
+                    acc += p * t * sum(map(mul, A[i0:e_ + 1], inv[i0:e_ + 1]))
+                for i in range(s_, i0):
+                    acc += p * A[i] / i * _min_mean(t, K, i, N)
+        if core.forced_at is not None:
+            _N, tN, wp = core.forced_at
+            acc += wp * max(0, min(K, N) - tN)
+        out[K] = acc
+    return out
 
 
 def _push1(md: _Model, rl: _Rule, R: int) -> tuple[list[float], float, float,
@@ -687,21 +1498,21 @@ def _push1(md: _Model, rl: _Rule, R: int) -> tuple[list[float], float, float,
         t = thr[i]
         a0 = A
         if A > 0.0 and t:
-            add = A * p * inv
+            add_ = A * p * inv
             top_j = t if t < L else L
-            D[1:top_j + 1] = [v + add for v in D[1:top_j + 1]]
+            D[1:top_j + 1] = [v + add_ for v in D[1:top_j + 1]]
             if t > R:
-                D[B] += add * (t - R)
-            A -= add * t
+                D[B] += add_ * (t - R)
+            A -= add_ * t
             started = True
         if i == N and t < i and a0 > 0.0:
-            add = a0 * p * inv
-            hi = i if i < R else R
-            if hi > t:
-                D[t + 1:hi + 1] = [v + add for v in D[t + 1:hi + 1]]
+            add_ = a0 * p * inv
+            hi_ = i if i < R else R
+            if hi_ > t:
+                D[t + 1:hi_ + 1] = [v + add_ for v in D[t + 1:hi_ + 1]]
             if i > max(t, R):
-                D[B] += add * (i - max(t, R))
-            A -= add * (i - t)
+                D[B] += add_ * (i - max(t, R))
+            A -= add_ * (i - t)
             started = True
         w = prior[i]
         if w > 0.0:
@@ -718,14 +1529,18 @@ def _push(md: _Model, rl: _Rule, R: int) -> tuple[list[float], float, float,
                                                      dict[float, float]]:
     """Distribution of the (best) hire's absolute rank, ranks 1..R exactly.
 
-    Pushes P(l openings left, relative rank r of the best hire so far)
-    forward; ``r = R+1`` stands for "worse than R".  O(M R m).  Returns
-    (fin[0..R+1], beyond, none, shares) with shares[x] = P(rank <= max(1,
-    floor(x n))) summed over the actual size n (exact only when R covers it).
+    The direct stage-by-stage push of P(l openings left, relative rank r of
+    the best hire so far); ``r = R+1`` stands for "worse than R".  O(M R m)
+    with a list operation per stage: the reference for the faster
+    :func:`_tau_head` / :func:`_e_head` (tests), and the fallback for several
+    openings when a level with a hire offers to more than best-so-fars.
+    Returns (fin[0..R+1], beyond, none, shares) with shares[x] = P(rank <=
+    max(1, floor(x n))) summed over the actual size n (exact only when R
+    covers it).
     """
     if md.m == 1:
         return _push1(md, rl, R)
-    M, m, p = md.M, md.m, md.p
+    m, p = md.m, md.p
     N = md.fixed_n if md.must else None
     B = R + 1
     D = [[0.0] * (R + 2) for _ in range(m)]     # levels 0..m-1 (a hire exists)
@@ -808,101 +1623,7 @@ def _push_cost(md: _Model, R: int) -> int:
     """Work units of :func:`_push` with depth R (several openings count 3x)."""
     M, m = md.reach, md.m
     lo = min(M, R)
-    return (lo * (lo + 1) // 2 + (M - lo) * R) * (1 if m == 1 else 3 * m) + M
-
-
-def _hyper_top(md: _Model, rl: _Rule, core: _Core, keys: list[int],
-               p0: dict[int, tuple[list[float], list[float]]]) -> dict[int, float] | None:
-    """P(hire's rank <= K), fixed pool, one opening.  See the module docstring.
-
-    ``P(rank <= K | relative rank j at stage i) = P(H >= j)``, H the number of
-    the best K among the first i (hypergeometric).  The rule contributes
-    ``sum_i entry_i E[min(H_i, t_i)]``: ``1 - P(H_i = 0)`` where t = 1,
-    ``E[H_i] = iK/N`` where t >= min(K, i), the pmf summed up to t elsewhere.
-    O(N) per K for best-so-far rules.  Returns None when the pmf cannot be
-    formed accurately (its first term underflows and t is not far below
-    the mean).
-    """
-    N = md.fixed_n
-    assert N is not None and core.entry is not None
-    out: dict[int, float] = {}
-    entry = core.entry
-    thr = rl.thr[1]
-    groups = group_thresholds(thr[1:N + 1])
-    for K in keys:
-        if K >= N:
-            out[K] = 1.0 - core.none
-            continue
-        P0, Q1 = p0[K]
-        acc = 0.0
-        for grp in groups:
-            t = grp.threshold
-            if t == 0:
-                continue
-            if t == 1:
-                acc += sum(map(operator.mul, entry[grp.first:grp.last + 1],
-                               Q1[grp.first:grp.last + 1]))
-                continue
-            for i in range(grp.first, grp.last + 1):
-                w = entry[i]
-                t = thr[i]
-                if w == 0.0:
-                    continue
-                if t >= (K if K < i else i):
-                    acc += w * (i * K / N)
-                    continue
-                h_min = i - (N - K) if i > N - K else 0
-                if h_min >= t:
-                    acc += w * t
-                    continue
-                if h_min > 0:
-                    # P(H = h_min): all N-i later candidates are among the best K
-                    pr = 1.0
-                    for l in range(N - i):
-                        pr *= (K - l) / (N - l)
-                else:
-                    pr = P0[i]
-                if pr < 1e-280:
-                    if t <= (i * K / N) / 2.0:
-                        # P(H < t) < exp(-mean/8) < 1e-37: E[min(H, t)] = t
-                        acc += w * t
-                        continue
-                    return None
-                below = 0.0
-                part = 0.0
-                for h in range(h_min, t):
-                    below += pr
-                    part += h * pr
-                    pr *= (K - h) * (i - h) / ((h + 1.0) * (N - K - i + h + 1.0))
-                acc += w * (part + t * (1.0 - below))
-        if md.must:
-            t = thr[N]
-            acc += entry[N] * max(0, min(K, N) - t)
-        out[K] = acc
-    return out
-
-
-def _hyper_cost(md: _Model, rules: list[_Rule], keys: list[int]) -> int:
-    N = md.fixed_n or 0
-    cost = len(keys) * N
-    for rl in rules:
-        thr = rl.thr[1]
-        for i in range(1, N + 1):
-            t = thr[i]
-            if t >= 2:
-                cost += len(keys) * min(t, i)
-    return cost
-
-
-def _p0_tables(N: int, keys: list[int]) -> dict[int, tuple[list[float], list[float]]]:
-    """P(none of the best K among the first i) and 1 minus it, i = 0..N.  O(N) per K."""
-    out = {}
-    for K in keys:
-        fac = [1.0] + [((N - K - i + 1) / (N - i + 1)) if N - K - i + 1 > 0 else 0.0
-                       for i in range(1, N + 1)]
-        col = list(itertools.accumulate(fac, operator.mul))
-        out[K] = (col, [1.0 - v for v in col])
-    return out
+    return (lo * (lo + 1) // 2 + (M - lo) * R) * (1 if m == 1 else 3 * m) + M * 30
 
 
 @dataclass
@@ -927,74 +1648,134 @@ def _share_key(sh: float) -> str:
     return f"{round(sh * 100)}%"
 
 
+def _share_cuts(md: _Model) -> dict[float, list[int]]:
+    """cuts[x][n] = max(1, floor(x n)), n = 0..M (the "best share x" of n)."""
+    M = md.M
+    return {x: [max(1, int(math.floor(x * n))) for n in range(M + 1)] for x in TOP_SHARES}
+
+
 def _extras(md: _Model, rules: list[_Rule], cores: list[_Core]) -> tuple[list[_Extras],
                                                                            list[str]]:
-    """Rank distribution and top-m table for every rule, within the work limits.
+    """Rank distribution and top-m table for every rule.
 
-    Rules are served in order (the optimal rule first) from one budget of
-    :data:`PUSH_BUDGET` work units: each gets the full distribution (every
-    rank; gives the share columns and, with several openings, the expected
-    rank), else ranks 1..200, else none.
+    * Known pool size, one opening, rules that pass, offer to best-so-fars or
+      to anyone (goal best, every compared skip rule): :func:`_tau_head`, ranks
+      1..min(N, RANK_HEAD), and :func:`_fixed_tails` for the share columns --
+      always, O(N) per rule.
+    * Otherwise (goals top / rank, uncertain pool sizes, several openings):
+      :func:`_e_head`, O(M m) per rank.  Rules are served in order (the
+      optimal rule first): a rule gets every rank up to the largest share
+      cut when that fits what is left of :data:`PUSH_FULL` (the share
+      columns for uncertain sizes / several openings need them), else ranks
+      1..R with R as large as what is left of :data:`PUSH_BUDGET` allows
+      (at least 1, at most RANK_HEAD; known sizes with one opening always
+      get ranks 1..10 and the share columns from :func:`_fixed_tails`).
+    * Several openings where a level with a hire offers to more than
+      best-so-fars: the direct push :func:`_push` within :data:`PUSH_FALLBACK`.
+
+    Every listed rank is exact; ``rest`` is the chance of a hire ranked lower
+    than the last listed rank.
     """
     notes: list[str] = []
-    head = min(md.M, RANK_HEAD)
-    full_R = md.M
-    cost_full, cost_head = _push_cost(md, full_R), _push_cost(md, head)
+    M = md.M
+    head = min(M, RANK_HEAD)
     fixed = md.fixed_n
-    keys: list[int] = []
     share_k: dict[float, int] = {}
+    keys: list[int] = []
     if fixed is not None:
         for sh in TOP_SHARES:
             share_k[sh] = max(1, int(math.floor(sh * fixed)))
         keys = sorted(set(TOP_COUNTS) | set(share_k.values()))
-    hyper_ok = (fixed is not None and md.m == 1 and cost_full > PUSH_BUDGET
-                and _hyper_cost(md, rules, keys) <= HYPER_BUDGET)
-    p0 = _p0_tables(fixed, keys) if hyper_ok and fixed is not None else {}
+    full = max(head, max(max(1, int(math.floor(x * M))) for x in TOP_SHARES))
     left = PUSH_BUDGET
+    left_full = PUSH_FULL
     out: list[_Extras] = []
     missing_dist = missing_top = 0
+    shown_R: set[int] = set()
+    cuts: dict[float, list[int]] | None = None
     for rl, core in zip(rules, cores):
         top: dict[str, float] | None = None
         dist: RankDistribution | None = None
         er: float | None = None
-        R: int | None = None
-        if cost_full <= left:
-            R, left = full_R, left - cost_full
-        elif cost_head <= left:
-            R, left = head, left - cost_head
-        if R is not None:
-            fin, _beyond, none, shares = _push(md, rl, R)
-            probs = [_clamp(v) for v in fin[1:head + 1]]
-            rest = max(0.0, 1.0 - none - math.fsum(probs))
-            dist = RankDistribution(probs, rest, _clamp(none))
-            cum = list(itertools.accumulate(fin[:R + 1]))
-            hired = 1.0 - none
-
-            def le(K: int) -> float:
-                return cum[min(K, R)]
-            if R == full_R:
-                top = {str(K): _clamp(le(K)) for K in TOP_COUNTS}
-                er = (math.fsum(r * v for r, v in enumerate(fin[:R + 1])) / hired
-                      if hired > 0 else None)
+        probs: list[float] | None = None
+        le: dict[int, float] = {}             # P(rank <= K), K in keys or TOP_COUNTS
+        share_v: dict[float, float] | None = None
+        one = md.m == 1
+        beyond = (not one) and _beyond_best(md, rl, core, range(1, md.m))
+        if (one and fixed is not None
+                and all(t in (0, 1, _ANYONE) for _s, _e, t in _rule_runs(md, rl, 1))):
+            probs = _tau_head(md, rl, core, head)
+        elif not beyond:
+            per = _e_cost(md, rl)
+            cap = _rank_max_e(md.reach, full)
+            want_full = not (one and fixed is not None)
+            # the share columns add a product and three partial sums per rank
+            per_full = per + (3 * (md.reach - (_e_lo(md, rl) or 1) + 1)
+                              if fixed is None else 0)
+            if want_full and cap >= full and per_full * full <= left_full:
+                R = full
+                left_full -= per_full * R
+            else:
+                R = min(head, cap, max(1, left // per))
+                if one and fixed is not None:
+                    R = max(R, min(M, 10, cap))       # the top-m counts need 1..10
+                left -= per * R
+            if R == full and want_full and fixed is None:
+                if cuts is None:
+                    cuts = _share_cuts(md)
+                probs, share_v = _e_head(md, rl, core, R, cuts)
+            else:
+                probs, _sv = _e_head(md, rl, core, R)
+            if R == full and want_full and fixed is not None:
+                cum = list(accumulate(probs))
+                share_v = {x: cum[min(share_k[x], R) - 1] for x in TOP_SHARES}
+        else:
+            R = min(full, M)
+            cost = _push_cost(md, R)
+            if cost > PUSH_FALLBACK:
+                R = head
+                cost = _push_cost(md, R)
+            if cost <= PUSH_FALLBACK:
+                fin, _b, _none, shares = _push(md, rl, R)
+                probs = fin[1:R + 1]
+                if R >= full:
+                    share_v = shares if fixed is None else {
+                        x: math.fsum(fin[1:min(share_k[x], R) + 1]) for x in TOP_SHARES}
+                    hired = 1.0 - core.none
+                    if R == M and hired > 0:
+                        er = math.fsum(r * v for r, v in enumerate(fin[:R + 1])) / hired
+        if probs is not None:
+            listed = [_clamp(v) for v in probs[:head]]
+            rest = max(0.0, 1.0 - core.none - math.fsum(listed))
+            dist = RankDistribution(listed, rest, _clamp(core.none))
+            shown_R.add(len(listed))
+            cum = list(accumulate(probs))
+            for K in TOP_COUNTS:
+                if K <= len(probs):
+                    le[K] = cum[K - 1]
+                elif len(probs) >= M:
+                    le[K] = cum[-1]
+        if len(le) == len(TOP_COUNTS):
+            if fixed is not None and one and share_v is None:
+                tails = _fixed_tails(md, rl, core, sorted(set(share_k.values())))
+                share_v = {x: tails[share_k[x]] for x in TOP_SHARES}
+            if share_v is not None:
+                top = {str(K): _clamp(le[K]) for K in TOP_COUNTS}
                 for sh in TOP_SHARES:
-                    top[_share_key(sh)] = _clamp(le(share_k[sh]) if fixed is not None
-                                                 else shares[sh])
-        if top is None and hyper_ok:
-            vals = _hyper_top(md, rl, core, keys, p0)
-            if vals is not None:
-                top = {str(K): _clamp(vals[K]) for K in TOP_COUNTS}
-                for sh in TOP_SHARES:
-                    top[_share_key(sh)] = _clamp(vals[share_k[sh]])
-        if top is not None:
-            top = _monotone(top)
+                    top[_share_key(sh)] = _clamp(share_v[sh])
+                top = _monotone(top)
         missing_dist += dist is None
         missing_top += top is None
         out.append(_Extras(top, dist, er))
     if missing_dist:
         which = "every rule" if missing_dist == len(rules) else "some compared rules"
         notes.append(f"The rank distribution is left out for {which}: it is computed "
-                     f"exactly (ranks 1..{head}) only while the work fits a limit of "
-                     f"{PUSH_BUDGET:,} state updates (one rule here needs {cost_head:,}).")
+                     f"exactly only while the work fits a limit of {PUSH_FALLBACK:,} "
+                     "state updates.")
+    if shown_R and min(shown_R) < head:
+        notes.append(f"The rank distribution lists ranks 1..{min(shown_R):,} exactly (the "
+                     "chance of a lower rank is in 'rest'); more ranks would exceed the "
+                     "work limit for this pool.")
     if missing_top:
         which = "every rule" if missing_top == len(rules) else "some compared rules"
         notes.append(f"The 'hire is among the best m' table is left out for {which}: for "
@@ -1014,9 +1795,9 @@ def _rule_result(md: _Model, rl: _Rule, core: _Core, ex: _Extras) -> RuleResult:
         if core.rank_mass is not None:
             exp_rank = core.rank_mass / hire if hire > 0 else None
         else:
-            exp_rank = ex.exp_rank_openings
+            exp_rank = _moment_rank(md, rl, core)
             if exp_rank is None:
-                exp_rank = _moment_rank(md, rl)
+                exp_rank = ex.exp_rank_openings
     best = _clamp(core.hire_best if goal == "rank" else core.succ)
     forced = _clamp(core.forced)
     none = _clamp(core.none)
@@ -1049,9 +1830,12 @@ def _skip_rule(md: _Model, plan: _Plan, r: int, name: str, rule: dict,
     gain = None
     if md.goal == "top":
         h1 = plan.h1 or []
-        gain = [0.0] * (r + 1) + [h1[i] for i in range(r + 1, M + 2)]
+        gain = [0.0] * (r + 1) + h1[r + 1:M + 2]
+    hi = md.reach
+    runs = ([(1, min(r, hi), 0)] if r >= 1 else []) + ([(r + 1, hi, 1)] if r < hi else [])
     return _Rule(name=name, description=description, rule=rule,
-                 thr=[[]] + [t] * md.m, gain=gain, skip=r)
+                 thr=[[]] + [t] * md.m, gain=gain, skip=r,
+                 runs={lv: runs for lv in md.levels})
 
 
 def _skip_target(md: _Model) -> str:
@@ -1108,7 +1892,8 @@ def _curve(md: _Model, plan: _Plan, opt_skip: int | None) -> Curve | None:
     success(r) = p sum_{i>r} prod_{l=r+1}^{i-1} (1 - p/l) G(i), with
     G(i) = sum_{n>=i} prior[n]/n (goal best) or S(i) h_i(1)/i (goal top);
     with P(n) = prod_{l=2}^{n} (1 - p/l) the product is P(i-1)/P(r), so
-    suffix sums of P(i-1) G(i) give every point in O(1).
+    suffix sums of P(i-1) G(i) give every point in O(1).  The products and
+    sums run in C (``accumulate``).
     """
     if md.goal == "rank" or md.m > 1:
         return None
@@ -1117,18 +1902,21 @@ def _curve(md: _Model, plan: _Plan, opt_skip: int | None) -> Curve | None:
         G = md.t1
     else:
         h1 = plan.h1 or []
-        G = [md.S[i] * h1[i] / i if i >= 1 else 0.0 for i in range(M + 2)]
-    P = [1.0] * (M + 2)
-    for n in range(2, M + 2):
-        P[n] = P[n - 1] * (1.0 - p / n)
-    Z = [0.0] * (M + 3)
-    for i in range(M, 0, -1):
-        Z[i] = Z[i + 1] + P[i - 1] * G[i]
+        G = [0.0]
+        G += [s_ * h / i for i, s_, h in zip(range(1, M + 2), md.S[1:M + 2], h1[1:M + 2])]
+    P = [1.0]
+    P += accumulate(_vec(md, "fac1")[2:M + 2], mul, initial=1.0)      # P[0..M+1]
+    # Z[i] = sum_{j >= i} P[j-1] G[j], i = 1..M (summed from the top), kept
+    # as Zr[i-1] = Z[i] / gz.  A known size has G = gz = 1/N on 1..N.
+    g1 = md.goal == "best" and md.fixed_n == M and md.S[M] == 1.0
+    Zr = list(accumulate(reversed(P[0:M]) if g1 else
+                         reversed(list(map(mul, P[0:M], G[1:M + 1])))))
+    Zr.reverse()            # now Zr[j] = Z[j + 1], j = 0..M-1
+    Zr += [0.0, 0.0]
+    gz = G[1] if g1 else 1.0
 
-    def success(r: int) -> float:
-        if r == 0:
-            return _clamp(p * (G[1] + (1.0 - p) * Z[2]))
-        return _clamp(p * Z[r + 1] / P[r])
+    def Z(i: int) -> float:
+        return gz * Zr[i - 1]
 
     if M <= CURVE_FULL_MAX:
         skips = list(range(M))
@@ -1139,31 +1927,21 @@ def _curve(md: _Model, plan: _Plan, opt_skip: int | None) -> Curve | None:
             pts.add(opt_skip)
         skips = sorted(pts)
         complete = False
-    succ = [success(r) for r in skips]
+    pz = p * gz
+    succ = [_clamp(pz * Zr[r] / P[r]) for r in skips]
+    if skips and skips[0] == 0:
+        succ[0] = _clamp(p * (G[1] + (1.0 - p) * Z(2)))
     limit: list[float | None]
     if md.goal == "best" and md.fixed_n is not None:
         n = md.fixed_n
-
-        def lim(r: int) -> float:
-            xx = r / n
-            if xx <= 0.0:
-                return 0.0
-            if p >= 1.0:
-                return -xx * math.log(xx)
-            return p * (xx ** p - xx) / (1.0 - p)
-        limit = [lim(r) for r in skips]
+        if p >= 1.0:
+            limit = [-(r / n) * math.log(r / n) if r > 0 else 0.0 for r in skips]
+        else:
+            limit = [p * ((r / n) ** p - r / n) / (1.0 - p) if r > 0 else 0.0
+                     for r in skips]
     else:
         limit = [None] * len(skips)
-    return Curve(skips=skips, success=succ, limit=limit, complete=complete)  # type: ignore[arg-type]
-
-
-def _runs(stages: Sequence[int]) -> list[tuple[int, int]]:
-    """Maximal runs of consecutive stages in an increasing list."""
-    if not stages:
-        return []
-    cuts = [a for a in range(1, len(stages)) if stages[a] != stages[a - 1] + 1]
-    bounds = [0] + cuts + [len(stages)]
-    return [(stages[a], stages[b - 1]) for a, b in zip(bounds, bounds[1:])]
+    return Curve(skips=skips, success=succ, limit=limit, complete=complete)
 
 
 def _runs_text(runs: list[tuple[int, int]], last: int) -> str:
@@ -1197,87 +1975,155 @@ def _who(v: int) -> str:
             f"anyone ranked {_ordinal(v)} or better so far")
 
 
-def _level_words(md: _Model, t: list[int]) -> str:
-    """Plain words for one list of thresholds (one openings-left level)."""
+def _blocks(runs: list[tuple[int, int, int]]) -> list[tuple[int, int]]:
+    """Maximal stretches of stages that make some offer (code != 0)."""
+    out: list[tuple[int, int]] = []
+    for s_, e_, t in runs:
+        if t == 0:
+            continue
+        if out and out[-1][1] == s_ - 1:
+            out[-1] = (out[-1][0], e_)
+        else:
+            out.append((s_, e_))
+    return out
+
+
+def _plan_runs(md: _Model, plan: _Plan, lv: int) -> list[tuple[int, int, int]]:
+    """Runs (:func:`_runs_of`) of the optimal thresholds at level lv, cached."""
+    r = plan.runs.get(lv)
+    if r is None:
+        r = plan.runs[lv] = _runs_of(plan.thr[lv], md.reach)
+    return r
+
+
+def _level_words(md: _Model, t: list[int], runs: list[tuple[int, int, int]]) -> str:
+    """Plain words for one list of thresholds (one openings-left level).
+
+    Works on the runs of equal offers (:func:`_runs_of`), O(runs).
+    """
     last = md.reach
-    stages = range(1, last + 1)
     if md.p == 1.0 and md.m == 1 and t[1] >= 1:
         return "make an offer to the first candidate"
-    # "anyone" = a candidate who cannot meet the goal (offered only to stop paying)
-    anyone = ([i for i in stages if i > md.k and t[i] >= i] if md.goal != "rank" else [])
+    k = md.k
+    # "anyone" = a candidate who cannot meet the goal (offered only to stop paying):
+    # stages i > k with t_i >= i
+    anyone = ([(max(s_, k + 1), e_) for s_, e_, c in runs if c == _ANYONE and e_ > k]
+              if md.goal != "rank" else [])
     cost_txt = ("make an offer to anyone (more interviews would cost more than they can "
                 "still add)")
     if md.goal == "best":
-        acc = [i for i in stages if t[i] >= 1]
-        if not acc:
+        blocks = _blocks(runs)
+        if not blocks:
             return "pass everyone"
-        runs = _runs(acc)
-        if len(runs) == 1 and runs[0][1] == last and runs[0][0] > 1:
-            text = (f"pass on the first {_count(runs[0][0] - 1)}, then make an offer to each "
-                    "candidate better than everyone before")
-        elif len(runs) == 1 and runs[0] == (1, last):
+        if len(blocks) == 1 and blocks[0][1] == last and blocks[0][0] > 1:
+            text = (f"pass on the first {_count(blocks[0][0] - 1)}, then make an offer to "
+                    "each candidate better than everyone before")
+        elif len(blocks) == 1 and blocks[0] == (1, last):
             text = "make an offer to each candidate better than everyone before"
         else:
             text = ("make an offer to a candidate better than everyone before "
-                    + _runs_text(runs, last) + "; pass at the other stages")
+                    + _runs_text(blocks, last) + "; pass at the other stages")
         if anyone:
-            text += f"; {_runs_text(_runs(anyone), last)}, {cost_txt}"
+            text += f"; {_runs_text(anyone, last)}, {cost_txt}"
         return text
-    # goals top / rank: say where the bar rises
-    regular = [0 if i in anyone else min(t[i], i) for i in stages]
-    mono = all(regular[a] <= regular[a + 1] for a in range(len(regular) - 1))
+    # goals top / rank: say where the bar rises.  The regular bar min(t_i, i)
+    # (0 where the offer is only to stop paying) as segments (first, last, v),
+    # v = None meaning "v = i at stage i".
+    segs: list[tuple[int, int, int | None]] = []
+    for s_, e_, c in runs:
+        if c == _ANYONE:
+            if md.goal != "rank" and e_ > k:
+                if s_ <= k:
+                    segs.append((s_, k, None))
+                segs.append((max(s_, k + 1), e_, 0))
+            else:
+                segs.append((s_, e_, None))
+        else:
+            segs.append((s_, e_, c))
+    mono = True
+    prev = -1
+    for s_, e_, v in segs:
+        if (s_ if v is None else v) < prev:
+            mono = False
+            break
+        prev = e_ if v is None else v
     take_last = (md.goal == "rank" and md.fixed_n is not None and t[last] >= last)
     if mono:
-        first = next((i for i, v in zip(stages, regular) if v >= 1), None)
+        first = next((s_ for s_, e_, v in segs if v is None or v >= 1), None)
         if first is None:
             return "pass everyone"
         pieces = []
-        if all(regular[i - 1] >= i for i in range(first, last + 1)):
+        if all(v is None or v >= e_ for s_, e_, v in segs if e_ >= first):
             who = "every candidate" if first == 1 else "every candidate after that"
             head = f"pass on the first {_count(first - 1)}, then " if first > 1 else ""
             return f"{head}make an offer to {who}"
         if first > 1:
             pieces.append(f"pass on the first {_count(first - 1)}")
-        changes = [(i, v) for i, v in zip(stages, regular)
-                   if v > 0 and (i == first or v != regular[i - 2])]
-        if take_last and changes and changes[-1][0] == last:
-            changes = changes[:-1]
+        # changes of the bar: (stage, new bar); keep the first six and the count
+        changes: list[tuple[int, int]] = []
+        count = 0
+        last_change = None
+        prev = 0
+        for s_, e_, v in segs:
+            if v is None:
+                lo_ = s_ if (s_ == first or s_ != prev) else s_ + 1
+                n_ = e_ - lo_ + 1
+                if n_ > 0:
+                    for i in range(lo_, min(e_, lo_ + 6 - len(changes) - 1) + 1):
+                        if len(changes) < 6:
+                            changes.append((i, i))
+                    count += n_
+                    last_change = (e_, e_)
+                prev = e_
+            else:
+                if v > 0 and (s_ == first or v != prev):
+                    if len(changes) < 6:
+                        changes.append((s_, v))
+                    count += 1
+                    last_change = (s_, v)
+                prev = v
+        if take_last and count and last_change is not None and last_change[0] == last:
+            count -= 1
+            del changes[count:]
         shown = changes[:5]
         for idx, (i, v) in enumerate(shown):
             if idx == 0:
                 pieces.append(f"from stage {i:,} make an offer to {_who(v)}")
             else:
                 pieces.append(f"from stage {i:,} to {_who(v)}")
-        if len(changes) > len(shown):
-            pieces.append(f"after that the bar keeps rising ({len(changes) - len(shown):,} "
+        if count > len(shown):
+            pieces.append(f"after that the bar keeps rising ({count - len(shown):,} "
                           "more steps, see the table)")
         if take_last:
             pieces.append("at the last candidate, take anyone")
         text = "; ".join(pieces)
     else:
+        regular: list[int] = []
+        for s_, e_, v in segs:
+            regular += range(s_, e_ + 1) if v is None else repeat(v, e_ - s_ + 1)
         groups = group_thresholds(regular)
-        segs = []
+        parts = []
         for g in groups[:6]:
             where = (f"stage {g.first:,}" if g.first == g.last else
                      f"stages {g.first:,}-{g.last:,}")
             what = "pass" if g.threshold == 0 else f"offer to {_who(g.threshold)}"
-            segs.append(f"{where}: {what}")
+            parts.append(f"{where}: {what}")
         if len(groups) > 6:
-            segs.append("and so on (see the table)")
-        text = "; ".join(segs)
+            parts.append("and so on (see the table)")
+        text = "; ".join(parts)
     if anyone:
-        text += f"; {_runs_text(_runs(anyone), last)}, {cost_txt}"
+        text += f"; {_runs_text(anyone, last)}, {cost_txt}"
     return text
 
 
 def _words(md: _Model, plan: _Plan) -> str:
     if md.m == 1:
-        text = _level_words(md, plan.thr[1])
+        text = _level_words(md, plan.thr[1], _plan_runs(md, plan, 1))
         text = text[0].upper() + text[1:] + "."
     else:
         parts = []
         for lv in range(md.m, 0, -1):
-            lw = _level_words(md, plan.thr[lv])
+            lw = _level_words(md, plan.thr[lv], _plan_runs(md, plan, lv))
             label = (f"With {lv} openings left" if lv == md.m else
                      f"with {lv} left" if lv > 1 else "with 1 left")
             parts.append(f"{label}: {lw}")
@@ -1293,21 +2139,43 @@ def _skip_of(md: _Model, plan: _Plan) -> int | None:
     """r if every level is 'pass r, then take each best-so-far', else None."""
     r_all = None
     for lv in md.levels:
-        t = plan.thr[lv]
-        r = 0
-        while r < md.M and t[r + 1] == 0:
-            r += 1
-        if any(t[i] != 1 for i in range(r + 1, md.M + 1)):
+        runs = (_plan_runs(md, plan, lv) if md.reach == md.M else
+                _runs_of(plan.thr[lv], md.M))
+        if len(runs) == 1 and runs[0][2] == 1:
+            r = 0
+        elif len(runs) == 2 and runs[0][2] == 0 and runs[1][2] == 1:
+            r = runs[0][1]
+        else:
             return None
-        if r >= md.M or (r_all is not None and r != r_all):
+        if r_all is not None and r != r_all:
             return None
         r_all = r
     return r_all
 
 
-def _interval(md: _Model, t: list[int]) -> bool:
-    acc = [i for i in range(1, md.reach + 1) if t[i] >= 1]
-    return len(_runs(acc)) <= 1
+def _interval(md: _Model, plan: _Plan) -> bool:
+    """The stages that make some offer form one stretch."""
+    return len(_blocks(_plan_runs(md, plan, md.m))) <= 1
+
+
+def _groups(md: _Model, plan: _Plan, thresholds: list[int]) -> list[StageGroup]:
+    """:func:`seqpick.results.group_thresholds` of the optimal thresholds, from
+    the cached runs (a stage offering to anyone is a group of its own)."""
+    if md.reach != md.M:
+        return group_thresholds(thresholds)
+    out: list[StageGroup] = []
+    for s_, e_, t in _plan_runs(md, plan, md.m):
+        if t == _ANYONE:
+            if out and out[-1].threshold == s_:      # t = s_ continues the group before
+                out[-1].last = s_
+                s_ += 1
+            stages = range(s_, e_ + 1)
+            out += map(StageGroup, stages, stages, stages)
+        elif out and out[-1].threshold == t:
+            out[-1].last = e_
+        else:
+            out.append(StageGroup(s_, e_, t))
+    return out
 
 
 # --------------------------------------------------------------------------
@@ -1371,7 +2239,7 @@ def _method(md: _Model) -> str:
 
 def _optimal_rule(md: _Model, plan: _Plan, words: str) -> _Rule:
     return _Rule(name="optimal", description=words, rule={"optimal": True}, thr=plan.thr,
-                 gain=plan.gain)
+                 gain=plan.gain, runs=plan.runs, vecs=plan.vecs)
 
 
 def solve_rankdp(s: Scenario) -> SolveResult:
@@ -1383,9 +2251,9 @@ def solve_rankdp(s: Scenario) -> SolveResult:
     thresholds = plan.thr[md.m][1:md.M + 1]
     by_left = ({str(lv): plan.thr[lv][1:md.M + 1] for lv in md.levels}
                if md.m > 1 else None)
-    policy = Policy(thresholds=thresholds, groups=group_thresholds(thresholds), words=words,
+    policy = Policy(thresholds=thresholds, groups=_groups(md, plan, thresholds), words=words,
                     skip=skip, thresholds_by_openings_left=by_left,
-                    interval=_interval(md, plan.thr[md.m]))
+                    interval=_interval(md, plan))
     rules = [_optimal_rule(md, plan, words)] + _compare(md, plan, s)
     cores = [_core(md, rl) for rl in rules]
     extras, notes = _extras(md, rules, cores)

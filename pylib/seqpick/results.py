@@ -49,6 +49,8 @@ def _clean(x: Any) -> Any:
             return list(x)  # fast path for long per-stage tables
         if x and all(type(v) is float for v in x) and all(map(math.isfinite, x)):
             return list(x)  # fast path for long lists of numbers
+        if x and all(type(v) is StageGroup for v in x):
+            return [{"first": g.first, "last": g.last, "threshold": g.threshold} for g in x]
         return [_clean(v) for v in x]
     if isinstance(x, float):
         if math.isnan(x) or math.isinf(x):
@@ -175,7 +177,7 @@ class Curve:
 
     skips: list[int]
     success: list[float]
-    limit: list[float]
+    limit: list[float | None]
     complete: bool
 
 

@@ -44,60 +44,113 @@ later best-so-far).  Their difference is
   x_k = (e - 1) k + 0.089 + O(1/k); as L T grows the rule tends to "first
   best-so-far after T/e" and the chance to 1/e (Cowan & Zabczyk 1978;
   Bruss 1987).  phi changes sign at XSTAR = 0.8044 (the root of
-  sum a^n/(n n!) = 1), and x_k >= x_1 > 1.5.  Each x_k is found by a safeguarded Newton iteration on
-  g (bisection inside a sign-change bracket); it depends on k only, so the
-  values are cached across calls.
+  sum a^n/(n n!) = 1), and x_k >= x_1 > 1.5.
 
-Exact performance of a threshold rule
--------------------------------------
-Arrival i is "active" if it comes at or after t*_i.  Because t*_i is
-nonincreasing in i and arrival times increase, once an arrival is active all
-later ones are, and the rule is "take the first best-so-far from index J on"
-with J the first active index.  J depends on the arrival times only, so it is
-independent of the ranks, and P(J <= i | N = n) = P(Bin(n, v_i) <= i - 1) with
-v_i = t*_i / T.  Given J = i and N = n the rule wins with the classic chance
-w(i, n) = ((i-1)/n) (H_{n-1} - H_{i-2}) (w(1, n) = 1/n).  Summation by parts
-gives
+The triple and its two exact moves
+----------------------------------
+For n >= 1 and M ~ Poisson(mu) let
 
-    P(win | n) = sum_{i<=n} G_i(n) (1 - H_{n-1} + H_{i-1}) / n,   G_i(n) = P(J <= i | n),
-    P(hire | n) = sum_i G_i(n) / n,
-    E[interviews | n] = n - sum_i G_i(n) (H_{n-1} - H_{i-1}),
+    s_n = E[1/(n+M)],  z_n = E[(H_{n+M-1} - H_{n-1})/(n+M)],  y_n = E[H_{n+M-1} - H_{n-1}],
 
-mixed over n ~ Poisson(L T).  G_i(n) is 0 or 1 to within 1e-18 outside a band
-of about 3 sqrt(L T) indices (Hoeffding bounds decide the band rigorously),
-and each G_i(n) row comes from the exact binomial recurrence in n.  The same
-formulas with a start state (k seen, mu left) give the value of passing in
-:func:`advise_window`.
+so S_n = n s_n, V_n = n z_n (the chance that "offer to the next
+best-so-far" wins with n seen) and g(n, mu) = n (s_n - z_n).  Two moves are
+exact (derived here):
 
-Truncation: Poisson weights are kept on a window whose two tails are each
-below 1e-18 (Chernoff bounds); terms with G below 1e-18 (or above
-1 - 1e-18) are treated as 0 (or 1).  Every left-out piece is at most 1e-18
-times a factor below 20, so the total truncation error is below 1e-15; the
-rest is floating-point rounding (about 1e-15).
+* count (fixed mu; Poisson identity E[M f(M)] = mu E[f(M+1)]):
+  mu s_{n+1} = 1 - n s_n,  y_{n+1} = y_n - (1 - n s_n)/n,  mu z_{n+1} = y_{n+1} - n z_n;
+* time (fixed n; M + D ~ Poisson(mu + delta) for D ~ Poisson(delta)):
+  s_n(mu + delta) = sum_d pi_d s_{n+d},  z_n(mu + delta) = sum_d pi_d (z_{n+d} + h_d s_{n+d}),
+  y_n(mu + delta) = sum_d pi_d (y_{n+d} + h_d),  pi_d = Poisson(d; delta), h_d = H_{n+d-1} - H_{n-1}.
+
+Thresholds by a chain of moves: from the triple at (k, x_k), count moves give
+it at (k+1 .. k+24, x_k), and x_{k+1} = x_k + delta solves g(k+1, x_k + delta) = 0 by
+Newton's method on the time move, which also gives the triple at
+(k+1, x_{k+1}).  delta is about e - 1 < 1.75, so 23 Poisson terms leave out
+less than 3e-18 of each sum.  An error in a carried triple is multiplied by
+at most e^-delta (mu/(mu - delta))^(n+1) < 3.2 through the count move and the
+Poisson weights together, and the time move is an average, so errors do not
+grow along the chain.  The arrival numbers come in segments of 128, each
+started by one direct Poisson sum (tails below 1e-18) and a Newton solve from
+a point checked to lie below the root; a segment is computed as far as needed
+and later extended with the same data, so x_k depends on k only.  Every root
+is accepted when its Newton step is below 2e-15 x_k; the values agree with
+brentq on an independent scipy sum and with direct root finding to about
+1e-15 relative (tests).
+
+Exact performance of a threshold rule: activation sums
+-------------------------------------------------------
+Start from "k0 seen, mu0 expected to come, nobody hired" (k0 = 0, mu0 = L T
+for the plan) and let X_i = min(x_i, mu0).  Once the count k and the
+remaining mu satisfy mu <= x_{k+1}, the next arrival is active and so is every
+later one (x increases with the count, mu decreases), so from that moment,
+the *activation* with count k at remaining mu, the rule is "offer to the next
+best-so-far", worth V_k(mu) = k z_k(mu) (psi(mu) = E[1/M; M >= 1] for k = 0),
+with hire chance 1 - k s_k(mu) and expected interviews k (1 + y_k(mu)) (derived
+here from the fixed-n chances of Gilbert & Mosteller 1966).  Activation
+happens exactly once: with count k at the boundary mu = X_{k+1} (chance
+Pois(k-k0; mu0 - X_{k+1})), or at the arrival that makes the count k while
+X_k < mu <= X_{k+1} (density Pois(k-1-k0; mu0 - mu)).  Hence
+
+    P(win) = sum_{k>=k0} Pois(k-k0; mu0 - X_{k+1}) V_k(X_{k+1})
+             + sum_{k>k0} int_{X_k}^{X_{k+1}} Pois(k-1-k0; mu0 - mu) V_k(mu) dmu,
+
+and the same with the hire and interview values.  The boundary value comes
+from the triple at (k+1, x_{k+1}) by one count step back; in the integral,
+mu = x_k + t and V_k(x_k + t) = sum_d Pois(d; t) F_d (time move), so it equals
+sum_d J_d F_d with c = k-1-k0, alpha = mu0 - x_k, delta = X_{k+1} - x_k and
+
+    J_d = int_0^delta Pois(c; alpha - t) Pois(d; t) dt = Pois(c+d+1; alpha) P(Bin(c+d+1, delta/alpha) >= d+1),
+
+computed by the recurrence alpha J_{d-1} = (c+1+d) J_d + (c+1) Pois(c+1; alpha - delta) Pois(d; delta)
+(integration by parts) run downwards, which adds positive terms only; it is
+used when (c + 1 + d)/alpha <= 1.2, so that a start error grows by at most 1.2
+per step; otherwise the binomial form (its tail summed from the end, all
+terms positive).  Only activation counts whose chance can matter are summed:
+activation with count <= k_a needs at most k_a - k0 new arrivals by
+mu0 - X_{k_a+1}, with count >= k_b at least k_b - k0 by mu0 - X_{k_b}; Chernoff
+bounds on these two Poisson tails (each below 1e-17, checked with the exact
+thresholds) fix the band of counts, about 4 sqrt(mu0) wide.  Per count the
+Poisson(t) terms stop where the rest is below 1e-20.
+
+Error bound (win and hire, absolute; interviews, relative): left-out counts
+below 2e-17, left-out Poisson terms below 1e-20 per count (at most ~1300
+counts), direct-sum tails below 2e-18; the rest is rounding: the triples
+carry a relative error of about 1e-15, each per-count sum has at most 25
+positive terms, so the total is below 1e-14.  Measured: within 1e-15 of a
+40-digit evaluation of the same sums, and of the summation over the count n
+used before (tests also check against an independent order-statistics
+formula, the continuous-time DP and simulation).
 
 Clock-only rules
 ----------------
-"First best-so-far after share x of the window" has the closed form (the
-max quality seen before time xT has P(1 - U > v) = e^{-x Lambda v})
+"First best-so-far after share x of the window" wins with chance
+x E[L_{M-1}(1-x)] + e^{-x Lambda} psi((1-x) Lambda), L_j(q) = sum_{n<=j} q^n/n
+(the max quality seen before time xT has P(1 - U > v) = e^{-x Lambda v}).  With
+the generating function sum_n t^n P(M <= n) = e^{-Lambda (1-t)}/(1-t) the series
+integrates in closed form, E[L_{M-1}(q)] = Ein(Lambda) - Ein(x Lambda)
+- e^{-x Lambda} psi((1-x) Lambda), so (derived here)
 
-    P(win) = x * sum_{n>=1} (1-x)^n / n * P(Poisson(Lambda) > n) + e^{-x Lambda} psi((1-x) Lambda),
+    P(win) = x (Ein(Lambda) - Ein(x Lambda)) + (1 - x) e^{-x Lambda} psi((1-x) Lambda),
     P(no hire) = x + (1 - x) e^{-Lambda},
     E[interviews] = x Lambda (1 + Ein(Lambda) - Ein(x Lambda)) + e^{-x Lambda} (1 - e^{-(1-x) Lambda}),
 
-with psi(b) = E[1/M; M >= 1], M ~ Poisson(b), and Ein(z) = int_0^z (1-e^-s)/s ds
-(derived here; the first tends to -x ln x as Lambda grows).  The series
-collapses to -ln x up to a term below 1e-18 unless x Lambda < 45, when it is
-summed exactly.
+with Ein(z) = int_0^z (1-e^-s)/s ds = gamma + ln z + E1(z).  The first tends to
+-x ln x as Lambda grows; the psi term is left out when below 1e-22.
 
 The curve (``SolveResult.curve``) lists this exact chance for x = i/1000,
 i = 0..999: ``skips[i] = i`` means the share i/1000 (not a number of
-candidates), ``limit`` is -x ln x.
+candidates), ``limit`` is -x ln x.  psi is needed on the grid only while
+x Lambda < 51, and comes from the time move
+psi(b + h) = e^-h psi(b) + sum_{d>=1} Pois(d; h) E[1/(d + M)], M ~ Poisson(b).
 
-Complexity: thresholds O(sqrt(k)) each (cached; from k = 2048 on solved at
-every 8th k and interpolated in between, error < 1e-10); a solve is O(L T)
-time (a band of about 6 sqrt(L T) arrival numbers times a window of about
-18 sqrt(L T) counts) and O(sqrt(L T)) memory; each curve point is O(1)
-unless x L T < 45, then O(L T).  Measured times: build_scripts/bench_window_odds.py.
+Complexity: per arrival number O(1) (a count move of 23 steps and usually
+one time move of 23 terms), plus one direct sum of about 18 sqrt(x_k) terms
+per segment of 128 arrival numbers; a solve covers the band, about
+4 sqrt(L T) arrival numbers (all of 1 .. 0.58 L T for the time table when
+L T <= 3000), so it is O(sqrt(L T)) moves plus O(L T / 30) direct terms, and
+the curve O(1) per point plus O(sqrt(L T)).  Memory O(band).  Advice from a
+state: the same sums, O(sqrt(mu0)).  Measured times:
+build_scripts/bench_window_odds.py.
 
 What is refused (ScenarioError): goals other than best, more than one
 opening, must_hire (with a time window the last candidate cannot be
@@ -118,8 +171,9 @@ Karlin, S. (1968). *Total Positivity*, Vol. 1. Stanford University Press
 (sign changes under a totally positive kernel).
 Gilbert, J. P. & Mosteller, F. (1966). Recognizing the maximum of a sequence.
 *J. Amer. Statist. Assoc.* 61, 35-73 (the fixed-n chance w(i, n)).
-Hoeffding, W. (1963). Probability inequalities for sums of bounded random
-variables. *J. Amer. Statist. Assoc.* 58, 13-30.
+Chernoff, H. (1952). A measure of asymptotic efficiency for tests of a
+hypothesis based on the sum of observations. *Ann. Math. Statist.* 23,
+493-507 (the tail bounds for the Poisson and binomial windows and the band).
 Loader, C. (2000). Fast and accurate computation of binomial probabilities
 (the saddle-point form used by ``dpois``/``dbinom``).
 Abramowitz, M. & Stegun, I. A. (1964). *Handbook of Mathematical Functions*,
@@ -130,17 +184,17 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+from bisect import bisect_left
 from dataclasses import dataclass
 from functools import lru_cache
-from itertools import accumulate
+from itertools import accumulate, repeat
 from math import fsum
-from itertools import repeat
 from operator import add, mul, sub, truediv
 from typing import Any
 
 from .advise import Advice, SearchState
 from .errors import ScenarioError
-from .harmonic import harmonic, tail
+from .harmonic import tail
 from .results import (Curve, Limit, Outcome, Policy, RuleResult, SolveResult)
 from .scenario import CompareRule, Scenario, WindowPool
 
@@ -152,8 +206,6 @@ __all__ = ["solve_window", "advise_window", "threshold", "threshold_time",
 MONTH_DAYS = 30.4375
 CURVE_POINTS = 1000
 _TAIL = 1e-18
-#: Hoeffding: P(|Bin(m, v) - m v| >= d) one side <= exp(-2 d^2 / m) <= 1e-18 iff d >= _HC sqrt(m)
-_HC = math.sqrt(math.log(1.0 / _TAIL) / 2.0)
 _E1M = math.e - 1.0
 _UNIT_SECONDS = {"minute": 60.0, "hour": 3600.0, "day": 86400.0, "week": 604800.0,
                  "month": MONTH_DAYS * 86400.0}
@@ -318,19 +370,8 @@ def ein(z: float) -> float:
 
 
 # --------------------------------------------------------------------------
-# harmonic numbers for the threshold equation
+# harmonic tails
 # --------------------------------------------------------------------------
-
-_H: list[float] = [0.0]
-
-
-def _hlist(upto: int) -> list[float]:
-    """H_0..H_upto (each within one unit in the last place), extended on demand."""
-    n = len(_H)
-    if upto >= n:
-        _H.extend(harmonic(j) for j in range(n, upto + 1))
-    return _H
-
 
 def _hdiff(a: int, b: int) -> float:
     """H_b - H_a for integers a, b >= 0 (either order), full precision.  O(1)."""
@@ -339,8 +380,186 @@ def _hdiff(a: int, b: int) -> float:
     return -tail(b + 1, a)
 
 
+def _tails(n: int, lo: int, count: int) -> list[float]:
+    """H_{n+m-1} - H_{n-1} for m = lo .. lo+count-1 (n >= 1).
+
+    Running sums of 1/j, restarted from :func:`seqpick.harmonic.tail` every
+    256 terms, so each value has relative error below 256 units in the last
+    place (about 3e-14; typically 1e-15).  O(count).
+    """
+    out: list[float] = []
+    for first in range(0, count, 256):
+        m = lo + first
+        part = min(256, count - first)
+        out.extend(accumulate(map(truediv, repeat(1.0), range(n + m, n + m + part - 1)),
+                              initial=tail(n, n + m - 1)))
+    return out
+
+
 # --------------------------------------------------------------------------
-# the thresholds x_k
+# the triple (s, z, y) and its two exact moves
+# --------------------------------------------------------------------------
+
+#: Poisson(delta) terms kept in a time move: the rest is below 3e-18 for delta <= 1.75
+#: (every chain step) and below 5e-17 for delta <= 2 (segment starts).
+_D = 22
+#: Tails of the Poisson windows of the direct sums.
+_DIRECT_TAIL = 1e-18
+
+
+def _direct_triple(n: int, mu: float) -> tuple[float, float, float]:
+    """(s_n, z_n, y_n) at mu by direct summation over the Poisson(mu) window.
+
+    s_n = E[1/(n+M)], z_n = E[(H_{n+M-1} - H_{n-1})/(n+M)],
+    y_n = E[H_{n+M-1} - H_{n-1}], M ~ Poisson(mu), n >= 1 (module docstring).
+    Left-out Poisson tails below 2e-18 (each term is at most 1 + ln(1 + M/n)); the
+    weights are normalised to sum 1 at the end.  O(sqrt(mu)).
+    """
+    if mu <= 0.0:
+        return 1.0 / n, 0.0, 0.0
+    a_lo, a_hi = chernoff_halfwidths(mu, _DIRECT_TAIL)
+    lo = max(0, int(math.ceil(mu - a_lo)))
+    hi = int(math.floor(mu + a_hi)) + 1
+    mode = min(max(int(mu), lo), hi)
+    p0 = dpois(mode, mu)
+    p = list(accumulate(map(truediv, range(mode, lo, -1), repeat(mu)), mul, initial=p0))
+    p.reverse()
+    p.pop()
+    p.extend(accumulate(map(truediv, repeat(mu), range(mode + 1, hi + 1)), mul, initial=p0))
+    cnt = len(p)
+    t = _tails(n, lo, cnt)
+    pinv = list(map(truediv, p, range(n + lo, n + lo + cnt)))
+    norm = 1.0 / fsum(p)
+    return (fsum(pinv) * norm, fsum(map(mul, pinv, t)) * norm, fsum(map(mul, p, t)) * norm)
+
+
+def _g_direct(k: int, mu: float) -> tuple[float, float]:
+    """(g(k, mu), d g / d mu) by direct summation; the fallback root finder's
+    evaluation (d/dmu E[c(M)] = E[c(M+1) - c(M)]).  O(sqrt(mu))."""
+    lo, p = pois_window(mu, _DIRECT_TAIL)
+    cnt = len(p)
+    t = _tails(k, lo, cnt + 1)
+    c = list(map(mul, map(truediv, repeat(float(k)), range(k + lo, k + lo + cnt + 1)),
+                 map(sub, repeat(1.0), t)))
+    val = fsum(map(mul, p, c))
+    return val, fsum(map(mul, p, c[1:])) - val
+
+
+def _forward_uv(n: int, mu: float, s: float, z: float, y: float,
+                steps: int) -> tuple[list[float], list[float], list[float]]:
+    """The count move, in the form the time move uses: s_{n+d}, z_{n+d} + h_d s_{n+d}
+    and y_{n+d} + h_d for d = 0 .. steps at a fixed mu > 0, h_d = H_{n+d-1} - H_{n-1}.
+
+    mu s_{j+1} = 1 - j s_j,  y_{j+1} = y_j - (1 - j s_j)/j,
+    mu z_{j+1} = y_{j+1} - j z_j  (Poisson identity E[M f(M)] = mu E[f(M+1)]).
+    An error in the start values is multiplied by at most prod (j/mu) over the
+    steps; the time move weighs the value at n + d by Poisson(delta) at d, and
+    sum_d Poisson(d; delta) prod_{j<n+d} (j/mu) <= e^-delta (mu/(mu-delta))^(n+1),
+    below 3.2 for every move made here (mu = x_n, delta <= x_{n+1} - x_n).  O(steps).
+    """
+    ss = [s]
+    us = [z]
+    vs = [y]
+    sa, ua, va = ss.append, us.append, vs.append
+    imu = 1.0 / mu
+    h = 0.0
+    for j in range(n, n + steps):
+        iv = 1.0 / j
+        r = 1.0 - j * s
+        s = r * imu
+        y -= r * iv
+        z = (y - j * z) * imu
+        h += iv
+        sa(s)
+        ua(z + h * s)
+        va(y + h)
+    return ss, us, vs
+
+
+def _pd(delta: float, count: int) -> list[float]:
+    """Poisson(delta) probabilities of 0 .. count (delta <= 2, no underflow).  O(count)."""
+    return list(accumulate(map(truediv, repeat(delta), range(1, count + 1)), mul,
+                           initial=math.exp(-delta)))
+
+
+def _root_move(k: int, mu: float, s: float, z: float, y: float, off: int, delta: float,
+               slope: float | None = None
+               ) -> tuple[float, float, float, float, float, float] | None:
+    """x_b and the triple at (b, x_b) for b = k + off (off 0 or 1), from the
+    triple at (k, mu) with mu < x_b, by Newton's method on the time move
+    delta = x_b - mu starting from the guess ``delta``.
+
+    With pi = Poisson(delta) and the base-b lists S_d = s_{b+d},
+    U_d = z_{b+d} + h_d s_{b+d}, V_d = y_{b+d} + h_d (h_d = H_{b+d-1} - H_{b-1},
+    from :func:`_forward_uv`), the time move gives the triple
+    (sum pi S, sum pi U, sum pi V) at (b, mu + delta), so
+    g(b, mu + delta) / b = sum_d pi_d (S_d - U_d) comes with it, and its delta-derivative
+    is sum_d pi_d ((S-U)_{d+1} - (S-U)_d).  An iterate is accepted when the
+    Newton step from it is below 2e-15 x_b (its error is then below that: the
+    slope changes by a relative O(step/x_b) over the step).  ``slope`` (the
+    previous root's, for b >= 64, where consecutive slopes differ by a few per
+    cent) saves the derivative when the guess is accepted at once: then the
+    accepted |g / slope| is at most half the tolerance; otherwise the exact
+    slope is used.  Returns (x_b, s, z, y, Newton step, slope), or None if the
+    iteration leaves 0 < delta <= 2 (the caller then falls back to direct root
+    finding).  O(1) time moves of _D terms each.
+    """
+    if off:
+        r = 1.0 - k * s
+        s = r / mu
+        y -= r / k
+        z = (y - k * z) / mu
+    b = k + off
+    ss, us, vs = _forward_uv(b, mu, s, z, y, _D + 1)
+    for _ in range(40):
+        if not 0.0 < delta <= 2.0:
+            return None
+        tol = 2e-15 * (mu + delta)
+        p = _pd(delta, _D)
+        a1 = fsum(map(mul, p, ss))
+        au = fsum(map(mul, p, us))
+        gval = a1 - au
+        if slope is not None and abs(gval) <= 0.5 * tol * -slope:
+            break
+        slope = fsum(map(mul, p, ss[1:])) - fsum(map(mul, p, us[1:])) - gval
+        if not slope < 0.0:
+            return None
+        step = -gval / slope
+        if abs(step) <= tol:
+            break
+        delta += step
+    else:
+        return None
+    return (mu + delta, a1, au, fsum(map(mul, p, vs)), -gval / slope, slope, ss, us, vs, p)
+
+
+def _direct_root(k: int) -> float:
+    """x_k by safeguarded Newton on direct evaluations of g (bisection inside a
+    sign-change bracket [1.5, (e-1) k + 1], widened if needed).  The fallback of
+    the chain and an independent check in the tests.  O(sqrt(k)) per step."""
+    lo, hi = 1.5, _E1M * k + 1.0
+    while _g_direct(k, hi)[0] >= 0.0:
+        lo, hi = hi, hi * 1.5
+    x = 0.5 * (lo + hi) if k < 4 else _E1M * k + 0.09
+    for _ in range(200):
+        val, slope = _g_direct(k, x)
+        if val > 0.0:
+            lo = x
+        elif val < 0.0:
+            hi = x
+        else:
+            return x
+        nx = x - val / slope if slope < 0.0 else 0.5 * (lo + hi)
+        if not lo < nx < hi:
+            nx = 0.5 * (lo + hi)
+        if abs(nx - x) <= 2e-15 * x or hi - lo <= 4e-16 * x:
+            return nx
+        x = nx
+    return x
+
+
+# --------------------------------------------------------------------------
+# the thresholds x_k: chains of exact moves, in fixed segments
 # --------------------------------------------------------------------------
 
 def _ein_star(x: float) -> tuple[float, float]:
@@ -378,118 +597,124 @@ def _solve_xstar() -> float:
 #: (the sign change used in the monotonicity proof of the module docstring).
 XSTAR = _solve_xstar()
 
-_XCACHE: dict[int, float] = {}
-_XCACHE_MAX = 2_000_000
+#: Arrival numbers per chain segment (each starts from a direct sum).
+_SEG = 128
+#: k -> (x_k, s_k, z_k, y_k): the threshold and the triple at (k, x_k).
+_STATES: dict[int, tuple[float, float, float, float]] = {}
+_STATES_MAX = 400_000
 
 
-def _g(k: int, mu: float) -> tuple[float, float]:
-    """(g(k, mu), d g / d mu): stop value minus one-step look-ahead value.
+def _segment_start(a: int) -> tuple[float, float, float, float, float]:
+    """x_a and its triple: one direct sum at mu_b below x_a (checked: g > 0
+    there, so mu_b < x_a by the single sign change), then the root by time
+    moves; direct root finding if that fails.  (x, s, z, y, Newton step)."""
+    mu_b = 1.5 if a == 1 else _E1M * a - 0.42
+    s, z, y = _direct_triple(a, mu_b)
+    if s - z > 0.0:
+        out = _root_move(a, mu_b, s, z, y, 0, _E1M * a + (0.41 if a == 1 else 0.09) - mu_b)
+        if out is not None:
+            return out[:5]
+    x = _direct_root(a)
+    return (x,) + _direct_triple(a, x) + (0.0,)
 
-    d/dmu E[c(M)] = E[c(M+1) - c(M)] for M ~ Poisson(mu).  O(sqrt(mu)); the
-    sums are plain float sums and the Poisson tails left out are below 1e-13
-    (|c_m| <= 1): the root only needs about 1e-10 relative, since the chance
-    of winning is flat (to second order) around the optimal threshold.
+
+#: segment j -> (last k computed, last four Newton-refined roots, carried slope)
+_CHAINS: dict[int, tuple[int, list[float], float | None]] = {}
+
+
+def _segment(j: int, upto: int, visit=None) -> None:
+    """Extend segment j of _STATES through k = upto (at most its last k).
+
+    Segment j covers k in [max(1, j*_SEG), (j+1)*_SEG): a chain of root moves
+    from the segment start, each guessed by extrapolating the last
+    Newton-refined differences (quadratic in the differences below k = 1024,
+    guess error O(k^-6); linear above, error O(k^-4), which amplifies the
+    rounding of the values less), so one Newton evaluation usually accepts it.
+    A chain is extended from where it stopped with the same data, so every
+    value is the same however far and in what order it was asked for.
+    ``visit(k, step_result)`` is called after each root move from k (for the
+    value sums of :func:`rule_value`, which reuse its lists).
     """
-    lo, p = pois_window(mu, 1e-13)
-    top = k + lo + len(p)
-    h = _hlist(top)
-    a = 1.0 + h[k - 1]
-    # c_m = k/(k+m) * (a - H_{k+m-1}), m = lo .. lo+len(p)
-    c = list(map(mul, map(truediv, repeat(float(k)), range(k + lo, top + 1)),
-                 map(sub, repeat(a), h[k + lo - 1: top])))
-    val = sum(map(mul, p, c))
-    ahead = sum(map(mul, p, c[1:]))
-    return val, ahead - val
-
-
-def _newton(k: int, x: float, lo: float, hi: float, maxit: int = 80) -> float:
-    """Safeguarded Newton for g(k, .) = 0 with g(lo) > 0 > g(hi)."""
-    for _ in range(maxit):
-        val, slope = _g(k, x)
-        if val > 0:
-            lo = x
-        elif val < 0:
-            hi = x
+    a = max(1, j * _SEG)
+    upto = min(upto, (j + 1) * _SEG - 1)
+    chain = _CHAINS.get(j)
+    if chain is None or a not in _STATES:
+        x, s, z, y, step = _segment_start(a)
+        _STATES[a] = (x, s, z, y)
+        chain = (a, [x + step], None)
+    k, xs, slope = chain
+    if k >= upto:
+        return
+    x, s, z, y = _STATES[k]
+    for k in range(k, upto):
+        if len(xs) >= 4 and k < 1024:
+            guess = 3.0 * (xs[-1] - xs[-2]) - 3.0 * (xs[-2] - xs[-3]) + xs[-3] - xs[-4]
+        elif len(xs) >= 3:
+            guess = 2.0 * (xs[-1] - xs[-2]) - (xs[-2] - xs[-3])
+        elif len(xs) == 2:
+            guess = xs[-1] - xs[-2]
         else:
-            return x
-        nx = x - val / slope if slope < 0 else 0.5 * (lo + hi)
-        if not lo < nx < hi:
-            nx = 0.5 * (lo + hi)
-        if abs(nx - x) <= 1e-12 * x or hi - lo <= 1e-12 * x:
-            return nx
-        x = nx
-    return x
+            guess = _E1M if k > 1 else 1.57
+        guess += xs[-1] - x
+        nxt = _root_move(k, x, s, z, y, 1, guess, slope if k >= 64 else None)
+        if nxt is None:
+            x, s, z, y, step = _segment_start(k + 1)
+            slope = None
+        else:
+            x, s, z, y, step, slope = nxt[:6]
+        _STATES[k + 1] = (x, s, z, y)
+        if visit is not None and nxt is not None:
+            visit(k, nxt)
+        xs.append(x + step)
+        if len(xs) > 4:
+            del xs[0]
+    _CHAINS[j] = (upto, xs, slope)
 
 
-_INTERP_FROM = 2048
-_STEP = 8
+def _ensure(k1: int, k2: int, visit=None) -> None:
+    """Make sure _STATES holds every k in [k1, k2] (k1 >= 1); the caches are
+    emptied first if they would grow beyond _STATES_MAX entries.  ``visit``:
+    see :func:`_segment`."""
+    if len(_STATES) + (k2 - k1 + 2 * _SEG) > _STATES_MAX:
+        _STATES.clear()
+        _CHAINS.clear()
+    for j in range(k1 // _SEG, k2 // _SEG + 1):
+        if min(k2, (j + 1) * _SEG - 1) not in _STATES:
+            _segment(j, k2, visit)
+
+
+def _clear_caches() -> None:
+    """Forget every cached threshold and triple (for benchmarks and tests)."""
+    _STATES.clear()
+    _CHAINS.clear()
+    _PSI_X1.clear()
+
+
+def _state(k: int) -> tuple[float, float, float, float]:
+    st = _STATES.get(k)
+    if st is None:
+        _ensure(k, k)
+        st = _STATES[k]
+    return st
 
 
 def threshold(k: int) -> float:
     """x_k: offer to the k-th arrival, if best so far, iff mu = L (T - t) <= x_k.
 
-    The root of g(k, mu) = 0 (module docstring); x_k depends on k only.
-    Safeguarded Newton with a bisection fallback inside [1.5, (e-1) k + 1]
-    (g > 0 at 1.5 < x_1, g < 0 at the right end, widened if needed).
-    O(sqrt(k)) per iteration; results are cached.  For k >= 2048 the root is
-    solved at every 8th k and the others come from cubic interpolation of the
-    four nearest solved values: x_k is smooth ((e-1) k + 0.089 + 0.28/k + ...),
-    so the interpolation error is below 1e-10 (tested); the chance of winning
-    is flat to second order around the optimal thresholds, so this changes it
-    by less than 1e-18, and every part of the engine uses the same values.
+    The root of g(k, mu) = 0 (module docstring); x_k depends on k only.  The
+    values come in segments of 128 arrival numbers: the first root from one
+    direct sum, each next one x_{k+1} = x_k + delta by Newton's method on exact
+    time moves of the triple at (k, x_k) (no interpolation).  Every root is
+    accepted when the Newton step is below 2e-15 x_k; with the rounding of the
+    sums (the triple is carried with relative error about 1e-15, and the moves
+    contract it) x_k is within 1e-14 x_k of the exact root (tested against
+    brentq and direct root finding).  A segment is the same whatever asked
+    for it, so every caller gets identical values.  O(1) per value after the
+    segment start, which is O(sqrt(k)); results are cached.
     """
     if k < 1:
         raise ValueError("threshold(k) needs k >= 1")
-    x = _XCACHE.get(k)
-    if x is not None:
-        return x
-    if k >= _INTERP_FROM and k % _STEP:
-        a1 = k - k % _STEP
-        nodes = (a1 - _STEP, a1, a1 + _STEP, a1 + 2 * _STEP)
-        ys = [threshold(a) for a in nodes]
-        x = 0.0
-        for i, (ai, yi) in enumerate(zip(nodes, ys)):
-            li = 1.0
-            for j, aj in enumerate(nodes):
-                if j != i:
-                    li *= (k - aj) / (ai - aj)
-            x += li * yi
-    else:
-        x = _exact_threshold(k)
-    if len(_XCACHE) < _XCACHE_MAX:
-        _XCACHE[k] = x
-    return x
-
-
-def _exact_threshold(k: int) -> float:
-    """The root of g(k, .) by Newton from a neighbour's value, else from a bracket."""
-    step = _STEP if k >= _INTERP_FROM else 1
-    prev1, prev2 = _XCACHE.get(k - step), _XCACHE.get(k - 2 * step)
-    x = None
-    if prev1 is not None:
-        guess = 2.0 * prev1 - prev2 if prev2 is not None else prev1 + _E1M * step
-        x = _warm(k, guess)
-    if x is None:
-        lo = 1.5
-        hi = _E1M * k + 1.0
-        while _g(k, hi)[0] >= 0:
-            lo, hi = hi, hi * 1.5
-        x = _newton(k, 0.5 * (lo + hi) if k < 4 else _E1M * k + 0.09, lo, hi)
-    return x
-
-
-def _warm(k: int, guess: float) -> float | None:
-    """A few Newton steps from a good guess; None if they do not settle."""
-    x = guess
-    for _ in range(4):
-        val, slope = _g(k, x)
-        if not slope < 0:
-            return None
-        step = -val / slope
-        x += step
-        if abs(step) <= 1e-9 * x:
-            return x
-    return None
+    return _state(k)[0]
 
 
 def threshold_time(k: int, pool: WindowPool) -> float:
@@ -517,170 +742,299 @@ class RuleValue:
     win: float
     hire: float
     interviews: float
-    band: tuple[int, int]      # indices i_lo .. i_hi-1 computed explicitly
-    full_from: int             # from this index on every arrival is active (to 1e-18)
+    band: tuple[int, int]      # arrival numbers whose cutoff can matter (to 1e-17)
+    full_from: int             # from this index on every arrival is active (to 1e-17)
 
 
-def _binom_cdf(x: int, n: int, v: float) -> float:
-    """P(Bin(n, v) <= x), summing the smaller tail from its accurate end term.
+#: Each left-out side of the band of activation counts has chance below this.
+_BAND_TAIL = 1e-17
 
-    The tail is summed over 12 standard deviations + 40 terms past its end
-    term (the terms fall faster than a Normal tail beyond the mean, so the
-    rest is below 1e-22 of the sum).  O(sqrt(n)).
-    """
-    if x < 0:
+
+def _log_pois_le(m: int, lam: float) -> float:
+    """Chernoff: log of a bound on P(Poisson(lam) <= m) (0 if m >= lam)."""
+    if m >= lam:
         return 0.0
-    if x >= n:
+    if m < 0:
+        return -math.inf
+    if m == 0:
+        return -lam
+    return -lam + m + m * math.log(lam / m)
+
+
+def _log_pois_ge(m: int, lam: float) -> float:
+    """Chernoff: log of a bound on P(Poisson(lam) >= m) (0 if m <= lam)."""
+    if m <= lam:
+        return 0.0
+    if lam <= 0.0:
+        return -math.inf
+    return -lam + m - m * math.log(m / lam)
+
+
+def _binom_upper(m: int, n: int, q: float) -> float:
+    """P(Bin(n, q) >= m), summing the smaller tail from its accurate end term
+    (terms fall at least geometrically away from the mode).  O(sqrt(n q))."""
+    if m <= 0:
         return 1.0
-    if v <= 0.0:
+    if m > n or q <= 0.0:
+        return 0.0
+    if q >= 1.0:
         return 1.0
-    mean = n * v
-    span = int(12.0 * math.sqrt(mean * (1.0 - v)) + 40.0)
-    if x < mean:
-        b = dbinom(x, n, v)
-        cnt = min(x, span)
-        c = (1.0 - v) / v
-        ratios = map(mul, repeat(c), map(truediv, range(x, x - cnt, -1),
-                                           range(n - x + 1, n - x + 1 + cnt)))
-        return min(1.0, fsum(accumulate(ratios, mul, initial=b)))
-    b = dbinom(x + 1, n, v)
-    cnt = min(n - x - 1, span)
-    c = v / (1.0 - v)
-    ratios = map(mul, repeat(c), map(truediv, range(n - x - 1, n - x - 1 - cnt, -1),
-                                       range(x + 2, x + 2 + cnt)))
-    return max(0.0, 1.0 - fsum(accumulate(ratios, mul, initial=b)))
+    c = q / (1.0 - q)
+    if m >= (n + 1) * q:
+        t = dbinom(m, n, q)
+        tot = 0.0
+        j = m
+        while t > 0.0:
+            tot += t
+            if j >= n or t <= 1e-20 * tot:
+                break
+            t *= (n - j) * c / (j + 1)
+            j += 1
+        return min(1.0, tot)
+    t = dbinom(m - 1, n, q)
+    tot = 0.0
+    j = m - 1
+    while t > 0.0:
+        tot += t
+        if j <= 0 or t <= 1e-20 * tot:
+            break
+        t *= j / ((n - j + 1) * c)
+        j -= 1
+    return max(0.0, 1.0 - tot)
+
+
+_PSI_X1: list[float] = []
+
+
+def _dtail_table(delta: float, count: int) -> list[float]:
+    """log of sum_{d > D} P(Poisson(delta) >= d+1) for D = 0 .. count (upper
+    bounds for every smaller delta)."""
+    p = [math.exp(-delta)]
+    for d in range(1, count + 60):
+        p.append(p[-1] * delta / d)
+    ge = list(accumulate(reversed(p)))[::-1]          # ge[j] = P(X >= j)
+    out = []
+    for big_d in range(count + 1):
+        out.append(math.log(fsum(ge[big_d + 2:]) * (1.0 + 1e-9)))
+    return out
+
+
+#: Time moves span delta < e - 1 < 1.75; terms past D add at most e^_DTAIL[D] times
+#: the largest Poisson weight of the move (see rule_value).
+_DTAIL = _dtail_table(1.75, _D)
+_DTAIL_NEG = [-v for v in _DTAIL]          # increasing, for bisect
+#: Left-out terms per activation count below e^_LOG_TERM_TAIL.
+_LOG_TERM_TAIL = math.log(1e-20)
+
+
+def _first_value(k: int, mu: float) -> tuple[float, float, float]:
+    """(win, hire, interviews) of "offer to the next best-so-far" with k seen and
+    mu expected: V_k = k z_k, 1 - k s_k, k (1 + y_k); for k = 0 the first
+    arrival: psi(mu), 1 - e^-mu twice.  O(sqrt(mu))."""
+    if k == 0:
+        h = -math.expm1(-mu)
+        return _psi(mu), h, h
+    s, z, y = _direct_triple(k, mu)
+    return k * z, 1.0 - k * s, k * (1.0 + y)
+
+
+def _band(k0: int, mu0: float) -> tuple[int, int]:
+    """Activation counts k0+1 .. k_hi outside which the chance is negligible.
+
+    Activation with count k needs at most k - k0 new arrivals by the time mu0 - X_{k+1}
+    and at least k - k0 by mu0 - X_k (X_i = min(x_i, mu0)), so counts below k_lo and
+    above k_hi have chance below the Chernoff bounds checked here (each
+    <= _BAND_TAIL).  The search uses (e-1) k + 0.09 for x_k and a 10 times
+    smaller tail; the final ends are then checked with the exact thresholds.
+    """
+    big = math.log(_BAND_TAIL)
+    approx = lambda i: min(mu0, _E1M * i + 0.09)           # noqa: E731
+    exact = lambda i: min(mu0, threshold(i))               # noqa: E731
+
+    def low_ok(ka: int, xf) -> bool:   # P(count <= ka) small
+        return _log_pois_le(ka - k0, mu0 - xf(ka + 1)) <= lim
+
+    def high_ok(kb: int, xf) -> bool:  # P(count >= kb) small
+        return _log_pois_ge(kb - k0, mu0 - xf(kb)) <= lim
+
+    top = k0 + 2 + int((mu0 + 1.0) / _E1M)     # beyond the clip point of approx
+    lim = big - math.log(10.0)
+    # largest ka in [k0, top] with low_ok (true-then-false); k0 - 1 if none
+    if not low_ok(k0, approx):
+        ka = k0 - 1
+    else:
+        a, b = k0, top
+        while b - a > 1:
+            mid = (a + b) // 2
+            if low_ok(mid, approx):
+                a = mid
+            else:
+                b = mid
+        ka = a
+    # smallest kb in [k0 + 1, top] with high_ok (false-then-true)
+    a, b = k0, top
+    while b - a > 1:
+        mid = (a + b) // 2
+        if high_ok(mid, approx):
+            b = mid
+        else:
+            a = mid
+    kb = b
+    lim = big
+    while ka >= k0 and not low_ok(ka, exact):
+        ka -= 1
+    while not high_ok(kb, exact):
+        kb += 1
+    return max(k0 + 1, ka + 1), kb - 1
+
+
+def _value_terms(k: int, k0: int, mu0: float, xk: float, s: float, z: float, y: float,
+                 move: tuple | None) -> tuple[float, float, float]:
+    """(win, hire, interviews) contributions of activation with count k (module
+    docstring: the boundary term at x_{k+1} and the integral over [x_k, X_{k+1}]).
+
+    ``move``: the root move from k that made x_{k+1} (its base-(k+1) lists at
+    x_k and Poisson weights are reused), or None (count move from the triple).
+    Poisson(t) terms beyond nd are left out when below 1e-20 in all.  O(nd).
+    """
+    c = k - 1 - k0
+    alpha = mu0 - xk
+    xn, s1, z1, y1 = _STATES[k + 1]
+    clipped = xn >= mu0
+    delta = alpha if clipped else xn - xk
+    p0 = dpois(c + 1, alpha)
+    if p0 <= 0.0:
+        return 0.0, 0.0, 0.0
+    # terms d > nd: below e^delta Pois(c; alpha) e^_DTAIL[nd] (module docstring)
+    nd = min(_D, bisect_left(_DTAIL_NEG, math.log(p0 * (c + 1) / alpha) + delta
+                             - _LOG_TERM_TAIL))
+    # J_d = int_0^delta Pois(c; alpha - t) Pois(d; t) dt, d = 0 .. nd
+    pb = 0.0
+    if clipped:                                          # J_d = Pois(c+d+1; alpha)
+        jw = list(accumulate(map(truediv, repeat(alpha), range(c + 2, c + nd + 2)), mul,
+                             initial=p0))
+    else:
+        q = delta / alpha
+        lq = math.log1p(-q)
+        pb = p0 * math.exp(delta + (c + 1) * lq)          # Pois(c+1; alpha - delta)
+        top = nd + 4
+        if c + 1 + top <= 1.2 * alpha:
+            # backward: alpha J_{d-1} = (c+1+d) J_d + (c+1) Pois(c+1; alpha-delta) Pois(d; delta)
+            if move is not None:
+                pd = move[9]
+                if len(pd) <= top:
+                    pd = list(pd)
+                    while len(pd) <= top:
+                        pd.append(pd[-1] * delta / len(pd))
+            else:
+                pd = _pd(delta, top)
+            cpb = (c + 1) * pb
+            jd = 0.0
+            jw = [0.0] * (nd + 1)
+            for d in range(top, 0, -1):
+                jd = ((c + 1 + d) * jd + cpb * pd[d]) / alpha
+                if d <= nd + 1:
+                    jw[d - 1] = jd
+        else:
+            # J_d = Pois(c+d+1; alpha) T_d, T_d = P(Bin(c+d+1, q) >= d+1)
+            pj = list(accumulate(map(truediv, repeat(alpha), range(c + 2, c + nd + 2)), mul,
+                                 initial=p0))
+            dt = nd + 30
+            b = list(accumulate(map(mul, repeat(q), map(truediv, range(c + 1, c + dt + 1),
+                                                          range(1, dt + 1))),
+                                mul, initial=math.exp(c * lq)))
+            nt = c + dt + 1
+            if (dt + 1) * math.log(math.e * nt * q / (dt + 1)) < -50.0:
+                t_end = 0.0          # Chernoff: P(Bin(nt, q) >= dt+1) < e^-50
+            else:
+                t_end = _binom_upper(dt + 1, nt, q)
+            suf = list(accumulate(reversed(b[1:]), initial=0.0))
+            suf.reverse()            # suf[d] = sum_{d' = d+1}^{dt} b_d'
+            omq = 1.0 - q
+            jw = list(map(mul, pj, map(add, repeat(t_end), map(mul, repeat(omq), suf))))
+    # sums of at most 25 positive terms: relative error below 3e-15 each
+    sj = sum(jw)
+    if move is None:
+        ss, us, vs = _forward_uv(k, xk, s, z, y, nd)
+        js = sum(map(mul, jw, ss))
+        ju = sum(map(mul, jw, us))
+        jv = sum(map(mul, jw, vs))
+    else:
+        # base-k values from the base-(k+1) lists: S_d = S'_{d-1}, U_d = U'_{d-1} + S'_{d-1}/k,
+        # V_d = V'_{d-1} + 1/k (d >= 1), and (s, z, y) at d = 0
+        ss, us, vs = move[6], move[7], move[8]
+        j1 = jw[1:]
+        js1 = sum(map(mul, j1, ss))
+        js = jw[0] * s + js1
+        ju = jw[0] * z + sum(map(mul, j1, us)) + js1 / k
+        jv = jw[0] * y + sum(map(mul, j1, vs)) + (sj - jw[0]) / k
+    win = k * ju
+    hire = sj - k * js
+    ints = k * (sj + jv)
+    if pb > 0.0:
+        # activation at the boundary mu = x_{k+1} with count k: Pois(c+1; alpha-delta)
+        stay = 1.0 - xn * s1
+        win += pb * (y1 - xn * z1)
+        hire += pb * (1.0 - stay)
+        ints += pb * k * (1.0 + y1 + (1.0 - stay) / k)
+    return win, hire, ints
 
 
 def rule_value(k0: int, mu0: float) -> RuleValue:
     """Exact chance of winning, of hiring, and expected interviews (counting the
     k0 already seen) of the optimal rule from "k0 seen, mu0 expected to come,
-    nobody hired, the k0-th not taken".  See the module docstring.  O(mu0).
+    nobody hired, the k0-th not taken".  See the module docstring (activation
+    sums).  O(sqrt(mu0)) time moves plus O(sqrt(mu0)) direct terms.
     """
     if mu0 <= 0.0:
         return RuleValue(0.0, 0.0, float(k0), (k0 + 1, k0 + 1), k0 + 1)
-    lo, pt = _pois_window_cached(mu0, _TAIL)
-    p = list(pt)
-    hi = lo + len(p) - 1
-    c2 = _HC * _HC
-
-    def v_of(i: int) -> float:
-        return max(0.0, 1.0 - threshold(i) / mu0)
-
-    def negligible(i: int) -> bool:          # G_i(m) <= 1e-18 for every window m >= j
-        j = i - k0
-        m = max(lo, j)
-        d = m * v_of(i) - (j - 1)
-        return d > 0 and d * d >= c2 * m
-
-    def full(i: int) -> bool:                # G_i(m) >= 1 - 1e-18 for every window m
-        j = i - k0
-        v = v_of(i)
-        if v == 0.0:
-            return True
-        d = j - hi * v
-        return d > 0 and d * d >= c2 * hi
-
-    first, last = k0 + 1, k0 + max(hi, 1)
-    # smallest i with not negligible(i) (negligible is true-then-false in i)
-    if not negligible(first):
-        i_lo = first
-    elif negligible(last):
-        i_lo = last + 1
-    else:
-        a, b = first, last
-        while b - a > 1:
-            mid = (a + b) // 2
-            if negligible(mid):
-                a = mid
-            else:
-                b = mid
-        i_lo = b
-    # smallest i >= i_lo with full(i) (false-then-true)
-    if i_lo > last:
-        i_hi = last + 1
-    elif full(i_lo):
-        i_hi = i_lo
-    elif not full(last):
-        i_hi = last + 1
-    else:
-        a, b = i_lo, last
-        while b - a > 1:
-            mid = (a + b) // 2
-            if full(mid):
-                b = mid
-            else:
-                a = mid
-        i_hi = b
-
-    base = i_lo - 1
-    ns = [k0 + m for m in range(lo, hi + 1)]
-    dvals = [_hdiff(base, n - 1) if n >= 1 else 0.0 for n in ns]
-    inv = [1.0 / n if n > 0 else 0.0 for n in ns]
-    p1 = [q * r for q, r in zip(p, inv)]
-    p2 = [a * d for a, d in zip(p1, dvals)]
-    p3 = [q * d for q, d in zip(p, dvals)]
-    c1 = list(accumulate(p1, initial=0.0))
-    c2s = list(accumulate(p2, initial=0.0))
-    c3 = list(accumulate(p3, initial=0.0))
-    c4 = list(accumulate(p, initial=0.0))
     win_t: list[float] = []
     hire_t: list[float] = []
-    int_t: list[float] = [fsum(q * n for q, n in zip(p, ns))]
+    int_t: list[float] = []
+    # activation at once (no arrival before mu0 - x_{k0+1}): chance e^-(mu0 - x_{k0+1});
+    # x_k < (e-1) k + 0.5, so it is below e^-75 unless mu0 is smaller than this
+    if mu0 < _E1M * (k0 + 1) + 75.5:
+        x_first = threshold(k0 + 1)
+        if x_first >= mu0:      # the next best-so-far gets an offer whatever its time
+            w, h, i = _first_value(k0, mu0)
+            return RuleValue(min(1.0, max(0.0, w)), min(1.0, max(0.0, h)), i,
+                             (k0 + 1, k0 + 1), k0 + 1)
+        wt = math.exp(-(mu0 - x_first))
+        if k0 == 0:
+            if not _PSI_X1:
+                _PSI_X1.append(_psi(x_first))
+            h = -math.expm1(-x_first)
+            v, hh, ii = _PSI_X1[0], h, h
+        else:
+            _, s1, z1, y1 = _state(k0 + 1)
+            stay = 1.0 - x_first * s1
+            v, hh, ii = y1 - x_first * z1, 1.0 - stay, k0 * (1.0 + y1 + (1.0 - stay) / k0)
+        win_t.append(wt * v)
+        hire_t.append(wt * hh)
+        int_t.append(wt * ii)
+    k_lo, k_hi = _band(k0, mu0)
+    terms: dict[int, tuple[float, float, float]] = {}
 
-    for i in range(i_lo, min(i_hi, last + 1)):
-        j = i - k0
-        v = v_of(i)
-        e_i = _hdiff(base, i - 1)
-        m_first = max(lo, j)
-        if m_first > hi:
-            break
-        # Hoeffding sub-window: G = 1 for m <= m_a, G = 0 for m >= m_b (to 1e-18)
-        sa = (-_HC + math.sqrt(c2 + 4.0 * v * j)) / (2.0 * v)
-        m_a = int(math.floor(sa * sa))
-        sb = (_HC + math.sqrt(c2 + 4.0 * v * max(j - 1, 0))) / (2.0 * v)
-        m_b = int(math.ceil(sb * sb))
-        s1 = s2 = s3 = s4 = 0.0
-        ones_end = min(m_a, hi)
-        if ones_end >= m_first:
-            ta, tb = m_first - lo, ones_end - lo + 1
-            s1 += c1[tb] - c1[ta]
-            s2 += c2s[tb] - c2s[ta]
-            s3 += c3[tb] - c3[ta]
-            s4 += c4[tb] - c4[ta]
-        ms = max(m_first, m_a + 1)
-        me = min(hi, m_b - 1)
-        if me >= ms:
-            g0 = _binom_cdf(j - 1, ms, v)
-            b0 = dbinom(j - 1, ms, v)
-            # b(m+1) = b(m) (1-v)(m+1)/(m+2-j);  G(m+1) = G(m) - v b(m)
-            ratios = map(mul, repeat(1.0 - v),
-                         map(truediv, range(ms + 1, me + 1), range(ms + 2 - j, me + 2 - j)))
-            bs = accumulate(ratios, mul, initial=b0)
-            rows = list(accumulate(map(mul, repeat(-v), bs), add, initial=g0))
-            rows.pop()
-            if rows[-1] < 0.0:
-                rows = [r if r > 0.0 else 0.0 for r in rows]
-            ta, tb = ms - lo, me - lo + 1
-            s1 += sum(map(mul, rows, p1[ta:tb]))
-            s2 += sum(map(mul, rows, p2[ta:tb]))
-            s3 += sum(map(mul, rows, p3[ta:tb]))
-            s4 += sum(map(mul, rows, p[ta:tb]))
-        win_t.append((1.0 + e_i) * s1 - s2)
-        hire_t.append(s1)
-        int_t.append(-(s3 - e_i * s4))
+    def visit(k: int, move: tuple) -> None:      # value sums from a fresh chain step
+        if k_lo <= k <= k_hi:
+            xk, s, z, y = _STATES[k]
+            if xk < mu0:
+                terms[k] = _value_terms(k, k0, mu0, xk, s, z, y, move)
 
-    a = i_hi
-    if a <= last:
-        for q, n in zip(p, ns):
-            if n < a:
-                continue
-            w = 1.0 / n if a == 1 else (a - 1) / n * _hdiff(a - 2, n - 1)
-            win_t.append(q * w)
-            hire_t.append(q * (n - a + 1) / n)
-            int_t.append(-q * (n - a - (a - 1) * _hdiff(a - 1, n - 1)))
+    _ensure(k_lo, k_hi + 1, visit)
+    for k in range(k_lo, k_hi + 1):
+        got = terms.get(k)
+        if got is None:
+            xk, s, z, y = _STATES[k]
+            if xk >= mu0:
+                break
+            got = _value_terms(k, k0, mu0, xk, s, z, y, None)
+        win_t.append(got[0])
+        hire_t.append(got[1])
+        int_t.append(got[2])
     win = min(1.0, max(0.0, fsum(win_t)))
     hire = min(1.0, max(0.0, fsum(hire_t)))
-    return RuleValue(win, hire, fsum(int_t), (i_lo, i_hi), i_hi)
+    return RuleValue(win, hire, fsum(int_t), (k_lo, k_hi + 1), k_hi + 1)
 
 
 # --------------------------------------------------------------------------
@@ -688,12 +1042,61 @@ def rule_value(k0: int, mu0: float) -> RuleValue:
 # --------------------------------------------------------------------------
 
 def _psi(b: float) -> float:
-    """psi(b) = E[1/M; M >= 1], M ~ Poisson(b): first arrival is the best.  O(sqrt(b))."""
+    """psi(b) = E[1/M; M >= 1], M ~ Poisson(b): first arrival is the best.
+
+    For b <= 30 the power series e^-b sum_{m>=1} b^m / (m m!) over its first
+    b + 10 sqrt(b) + 30 terms (the rest is below 1e-30), else the Poisson window
+    (tails below 1e-18 each).  O(sqrt(b)).
+    """
     if b <= 0.0:
         return 0.0
+    if b <= 30.0:
+        top = int(b + 10.0 * math.sqrt(b) + 30.0)
+        terms = accumulate(map(truediv, repeat(b), range(2, top + 1)), mul, initial=b)
+        return math.exp(-b) * fsum(map(truediv, terms, range(1, top + 1)))
     lo, p = pois_window(b, _TAIL)
     m0 = max(lo, 1)
     return fsum(map(truediv, p[m0 - lo:], range(m0, lo + len(p))))
+
+
+def _psi_grid(lam: float, count: int) -> list[float]:
+    """psi(lam - i h) for i = 0 .. count-1, h = lam / CURVE_POINTS.
+
+    From the smallest argument up by the exact time move
+    psi(b + h) = e^-h psi(b) + sum_{d>=1} Poisson(d; h) s_d(b), with
+    s_1 = (1 - e^-b)/b and b s_{d+1} = 1 - d s_d (s_d = E[1/(d + M)]; stable for
+    d < b/2), Poisson(h) terms up to a tail below 1e-20; each step shrinks
+    earlier errors by e^-h.  Direct sums where b < max(40, 2 d_max) or h > 50.
+    O(count) after one direct sum.
+    """
+    h = lam / CURVE_POINTS
+    out = [0.0] * count
+    i = count - 1
+    if h <= 50.0 and count > 1:
+        pd = [math.exp(-h)]
+        while pd[-1] > 1e-21 or len(pd) <= h + 1:
+            pd.append(pd[-1] * h / len(pd))
+        nd = len(pd) - 1
+        floor_b = max(40.0, 2.0 * nd)
+    else:
+        floor_b = math.inf
+    while i >= 0 and lam - i * h < floor_b:
+        out[i] = _psi(lam - i * h)
+        i -= 1
+    if i < 0:
+        return out
+    out[i] = _psi(lam - i * h)
+    eh = pd[0]
+    while i > 0:
+        b = lam - i * h
+        sd = -math.expm1(-b) / b
+        acc = pd[1] * sd
+        for d in range(1, nd):
+            sd = (1.0 - d * sd) / b
+            acc += pd[d + 1] * sd
+        out[i - 1] = eh * out[i] + acc
+        i -= 1
+    return out
 
 
 @dataclass
@@ -703,43 +1106,46 @@ class ClockValue:
     interviews: float
 
 
+def _ein_diff(x: float, lam: float, ein_lam: float, e1_lam: float) -> float:
+    """Ein(lam) - Ein(x lam) for 0 < x < 1 (= -ln x + E1(lam) - E1(x lam));
+    E1(x lam) < 4e-24 is left out when x lam > 50.  O(1)."""
+    a = x * lam
+    if a > 50.0:
+        return -math.log(x) + e1_lam
+    if a > 1.0:
+        return -math.log(x) + e1_lam - e1(a)
+    return ein_lam - ein(a)
+
+
+def _clock_win(x: float, lam: float, ein_lam: float, e1_lam: float) -> float:
+    """P(win) of the clock rule: x (Ein(lam) - Ein(x lam)) + (1-x) e^{-x lam} psi((1-x) lam)
+    (module docstring); the second term is left out when below 1e-22 (psi(b) <= min(1, 2/b))."""
+    a = x * lam
+    b = lam - a
+    win = x * _ein_diff(x, lam, ein_lam, e1_lam) if x > 0.0 else 0.0
+    ea = math.exp(-a)
+    if ea * min(1.0, 2.0 / b if b > 0.0 else 1.0) > 1e-22:
+        win += (1.0 - x) * ea * _psi(b)
+    return min(1.0, max(0.0, win))
+
+
 def clock_rule(x: float, lam: float) -> ClockValue:
     """Exact performance of "first best-so-far after share x of the window"
     with Lambda = L T expected arrivals (closed forms in the module docstring).
-    O(1) unless x * Lambda < 45, then O(Lambda)."""
+    O(1) unless x * Lambda < 52, then O(sqrt(Lambda))."""
     if not 0.0 <= x < 1.0:
         raise ValueError("share must be in [0, 1)")
     a = x * lam
     b = lam - a
-    ea = math.exp(-a)
-    first = ea * _psi(b) if ea > 1e-30 else 0.0
-    if x == 0.0:
-        win = first
-    else:
-        lo, p = _pois_window_cached(lam, _TAIL)
-        mlo = max(lo, 1)
-        q = 1.0 - x
-        lq = math.log1p(-x)
-        if mlo * -lq + math.log(mlo) > math.log(1.0 / _TAIL) + 5:
-            series = -math.log(x)          # E[L_{M-1}(q)] = -ln x - (tail < 1e-18)
-        else:
-            # E[L_{M-1}(q)] with L_j = sum_{n=1}^{j} q^n / n, summed exactly
-            hi = lo + len(p) - 1
-            qn = accumulate(repeat(q, hi), mul)                   # q^1 .. q^hi
-            lj = list(accumulate(map(truediv, qn, range(1, hi + 1)), initial=0.0))
-            m0 = max(lo, 2)
-            series = fsum(map(mul, p[m0 - lo:], lj[m0 - 1:hi]))
-        win = x * series + first
+    ein_lam = ein(lam)
+    e1_lam = e1(lam) if lam > 0.0 else math.inf
+    win = _clock_win(x, lam, ein_lam, e1_lam)
     none = x + (1.0 - x) * math.exp(-lam)
     if a <= 0.0:
         intv = -math.expm1(-lam)
     else:
-        if a > 1.0:
-            diff = -math.log(x) + e1(lam) - e1(a)
-        else:
-            diff = ein(lam) - ein(a)
-        intv = a * (1.0 + diff) + ea * (-math.expm1(-b))
-    return ClockValue(min(1.0, max(0.0, win)), min(1.0, none), intv)
+        intv = a * (1.0 + _ein_diff(x, lam, ein_lam, e1_lam)) + math.exp(-a) * (-math.expm1(-b))
+    return ClockValue(win, min(1.0, none), intv)
 
 
 def skip_rule(r: int, lam: float) -> ClockValue:
@@ -842,26 +1248,39 @@ def _result(name: str, description: str, rule: dict[str, Any], win: float, none:
 
 def _best_clock(lam: float) -> tuple[float, ClockValue, list[float]]:
     """The curve on x = i/1000 and the best clock-only cutoff (golden section
-    refinement of the best grid point on the exact chance)."""
+    refinement of the best grid point on the exact chance).  O(1) per point
+    unless x L T < 52; O(sqrt(L T)) for those (at most 52000 / (L T) + 1 points)."""
+    ein_lam = ein(lam)
+    e1_lam = e1(lam)
+    win = lambda x: _clock_win(x, lam, ein_lam, e1_lam)      # noqa: E731
     xs = [i / CURVE_POINTS for i in range(CURVE_POINTS)]
-    curve = [clock_rule(x, lam).win for x in xs]
+    # e^-a psi(b) <= min(1, 2/b) e^-a matters (> 1e-22) only while a = x lam < 51
+    n_psi = min(CURVE_POINTS, int(51.0 * CURVE_POINTS / lam) + 1) if lam > 0.0 else 0
+    psis = _psi_grid(lam, n_psi)
+    curve = []
+    for i, x in enumerate(xs):
+        a = x * lam
+        v = x * _ein_diff(x, lam, ein_lam, e1_lam) if i else 0.0
+        if i < n_psi:
+            v += (1.0 - x) * math.exp(-a) * psis[i]
+        curve.append(min(1.0, max(0.0, v)))
     ib = max(range(CURVE_POINTS), key=curve.__getitem__)
     a = xs[ib - 1] if ib > 0 else 0.0
     b = xs[ib + 1] if ib + 1 < CURVE_POINTS else 1.0 - 1e-12
     gr = (math.sqrt(5.0) - 1.0) / 2.0
     c, d = b - gr * (b - a), a + gr * (b - a)
-    fc, fd = clock_rule(c, lam).win, clock_rule(d, lam).win
+    fc, fd = win(c), win(d)
     for _ in range(60):
         if b - a < 1e-10:
             break
         if fc >= fd:
             b, d, fd = d, c, fc
             c = b - gr * (b - a)
-            fc = clock_rule(c, lam).win
+            fc = win(c)
         else:
             a, c, fc = c, d, fd
             d = a + gr * (b - a)
-            fd = clock_rule(d, lam).win
+            fd = win(d)
     x = 0.5 * (a + b)
     best = clock_rule(x, lam)
     if curve[ib] > best.win:

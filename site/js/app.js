@@ -31,7 +31,12 @@
 //        {"scenario": <scenario as the page sends it>, "result": <SolveResult.to_dict()>}
 //      </script>
 //    and its scenario is the one the form starts with, that answer is shown at
-//    once, before the solver has booted, and is not solved again.
+//    once, before the solver has booted (summary data-plan-source="prerendered"),
+//    then solved once more in the background when the engine is ready
+//    (data-plan-source="live"; a difference beyond 1e-12 replaces it, with a warning).
+// 5. Share link (share.js): the scenario lives in the URL fragment; a page
+//    opened with one decodes it with the engine before solving.
+// 6. <html data-engine="loading|ready|failed" data-engine-ready-at="<ms>">.
 // ---------------------------------------------------------------------------
 
 import { createEngine } from "./engine.js";
@@ -50,7 +55,10 @@ import { buildForm, focusAfterRemove, focusRule, renderForm } from "./plan/form.
 import { renderResults, ruleNumbersText } from "./plan/results.js";
 import { initViews, renderViews } from "./views.js";
 import { setText } from "./plan/dom.js";
+import { initShare, renderShare } from "./share.js";
+import { readPrerendered, resultsAgree } from "./prerendered.js";
 import "./companion/live.js";
+import "./offline.js";
 
 const SOLVE_DELAY_MS = 200;
 
@@ -79,7 +87,8 @@ function scheduleSolve(delay = SOLVE_DELAY_MS) {
 
 function solveNow() {
   timer = null;
-  if (state.engine.state !== "ready") return; // solved when the engine is ready
+  // Solved when the engine is ready, and once a shared link has been read.
+  if (state.engine.state !== "ready" || state.share.opening) return;
   const { scenario, compareIds } = buildRequest(state);
   const key = scenarioKey(scenario);
 
@@ -103,7 +112,7 @@ function solveNow() {
     (data) => {
       if (mine !== seq) return; // a newer request was sent: never show this one
       inflightKey = null;
-      state.result = { data, key, compareIds, scenario };
+      state.result = { data, key, compareIds, scenario, source: "live" };
       state.errors = {};
       state.generalError = null;
       state.pending = false;
@@ -257,6 +266,9 @@ function render() {
   renderForm(state, ruleNumbersFor(buildRequest(state)));
   renderResults(state, parts, resultHandlers);
   renderViews(state);
+  renderShare(state);
+  if (state.result) parts.summary.dataset.planSource = state.result.source;
+  else delete parts.summary.dataset.planSource;
   const title = state.form.title.trim();
   document.title = title ? `${title} · Seqpick` : "Seqpick: plan a one-at-a-time search";
 }
@@ -310,16 +322,43 @@ function showView(name) {
 // --- start -----------------------------------------------------------------------------------
 
 function usePrerendered() {
-  const node = document.getElementById("prerendered-plan");
-  if (!node) return;
-  try {
-    const { scenario, result } = JSON.parse(node.textContent);
-    const { scenario: now, compareIds } = buildRequest(state);
-    const key = scenarioKey(now);
-    if (result && scenarioKey(scenario) === key) state.result = { data: result, key, compareIds, scenario: now };
-  } catch {
-    // A broken prerender is ignored: the solver answers soon anyway.
+  const pre = readPrerendered(); // null when absent or broken: the solver answers soon anyway
+  if (!pre || !pre.result || state.share.opening) return;
+  const { scenario: now, compareIds } = buildRequest(state);
+  const key = scenarioKey(now);
+  if (scenarioKey(pre.scenario) === key) {
+    state.result = { data: pre.result, key, compareIds, scenario: now, source: "prerendered" };
   }
+}
+
+/** Once the engine is ready, solve the prerendered scenario again in the
+ *  background; if the answers differ beyond 1e-12, show the live one. */
+function checkPrerendered() {
+  const shown = state.result;
+  if (!shown || shown.source !== "prerendered") return;
+  engine.request("solve", shown.scenario, { channel: "prerender-check" }).then(
+    (data) => {
+      if (state.result !== shown) return; // the entries changed meanwhile: their own answer counts
+      if (resultsAgree(shown.data, data, 1e-12)) {
+        shown.source = "live"; // the same numbers: nothing to redraw
+        render();
+      } else {
+        console.warn("Seqpick: the prerendered plan differs from the live engine's answer; showing the live one.");
+        state.result = { ...shown, data, source: "live" };
+        render();
+        announcePlan();
+      }
+    },
+    () => {} // a failed engine is reported by the status line
+  );
+}
+
+/** Markers for tests and the benchmark: <html data-engine="loading|ready|failed"
+ *  data-engine-ready-at="<performance.now() when it became ready>">. */
+function markEngine(engineState) {
+  const marks = document.documentElement.dataset;
+  if (engineState === "ready" && marks.engine !== "ready") marks.engineReadyAt = String(performance.now());
+  marks.engine = engineState;
 }
 
 buildForm(parts.form, formHandlers);
@@ -330,12 +369,17 @@ initViews({
   ctx: { engine, getPlan, onPlan, showView },
   onChange: showView,
 });
+initShare({ state, engine, render, loadScenario, parts });
 usePrerendered();
 render();
 
 engine.onStatus((status) => {
   state.engine = { state: status.state, detail: status.detail ?? "" };
   if (status.state === "failed") state.pending = false;
+  markEngine(status.state);
   render();
-  if (status.state === "ready") solveNow();
+  if (status.state === "ready") {
+    solveNow();
+    checkPrerendered();
+  }
 });

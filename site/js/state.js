@@ -12,9 +12,11 @@
 //   errors:  {<control key>: message} from the engine (one at a time: the
 //            engine names the first offending field);
 //   generalError: a message that belongs to no single control, or null;
-//   result:  the last good answer {data, key, compareIds} or null:
+//   result:  the last good answer {data, key, compareIds, scenario, source} or null:
 //            data = SolveResult.to_dict(), key = scenarioKey() of the
-//            scenario it answers, compareIds = the compare rows sent, in order;
+//            scenario it answers, compareIds = the compare rows sent, in order,
+//            source = "prerendered" (worked out by the build) | "live";
+//   share:   share link, downloads and print (see share.js);
 //   pending: true while a solve for the current inputs is on its way;
 //   ui:      {expanded: {<table key>: rows shown}} for long tables.
 // }
@@ -26,6 +28,8 @@
 // boxes shift the decimal point in the text rather than multiplying, so no
 // binary rounding creeps in: 0.07 -> "7" -> 0.07.
 
+import { readPrerendered } from "./prerendered.js";
+
 export const POOL_FORMS = ["size", "range", "mean", "weights", "window", "chances"];
 export const GOAL_TYPES = ["best", "top", "rank", "score"];
 export const SCORE_FORMS = ["none", "uniform", "normal", "sample"];
@@ -35,19 +39,35 @@ export const WINDOW_UNITS = ["minute", "hour", "day", "week", "month"];
 export const PERCENT_KINDS = new Set(["skip_share", "start_share"]);
 export const MAX_COMPARE = 20;
 
+/** Used only when site/demo-scenario.json cannot be had at all. */
+const FALLBACK_DEMO = { version: 1, pool: { size: 30 } };
+
+function deepFreeze(value) {
+  if (value && typeof value === "object") {
+    for (const v of Object.values(value)) deepFreeze(v);
+    Object.freeze(value);
+  }
+  return value;
+}
+
+/** The demo scenario's one source is site/demo-scenario.json (the build reads
+ *  it too). The built page carries it inline (#prerendered-plan, see
+ *  prerendered.js), so no request is made; an unbuilt page fetches the file. */
+async function loadDemoScenario() {
+  const inline = readPrerendered();
+  if (inline) return structuredClone(inline.scenario);
+  try {
+    const response = await fetch(new URL("../demo-scenario.json", import.meta.url));
+    if (response.ok) return await response.json();
+  } catch {
+    // Fall through to the built-in minimum.
+  }
+  console.warn("Seqpick: demo-scenario.json could not be loaded; starting from a plain scenario.");
+  return FALLBACK_DEMO;
+}
+
 /** Our own demo: a small lending library choosing one coordinator. */
-export const DEMO_SCENARIO = Object.freeze({
-  version: 1,
-  title: "Harbour Street tool library: choosing a lending-desk coordinator",
-  pool: { size: 24 },
-  goal: { type: "best" },
-  scores: null,
-  accept_probability: 1,
-  openings: 1,
-  cost_per_candidate: 0,
-  must_hire: false,
-  compare: [{ skip: 5 }, { skip_share: 0.5 }],
-});
+export const DEMO_SCENARIO = deepFreeze(await loadDemoScenario());
 
 /** Values of every control before anything is typed. */
 export function defaultForm() {

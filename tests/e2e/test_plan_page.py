@@ -171,13 +171,15 @@ def test_invalid_size_shows_inline_error_and_keeps_the_text(page, site_server, t
     expect(summary(page)).to_contain_text("37.1%")
 
 
-def test_an_error_before_any_answer_says_what_to_do(page, site_server):
+def test_an_error_while_booting_says_what_to_do(page, site_server):
     page.goto(site_server + "/", wait_until="domcontentloaded")
     size = page.get_by_label("Number of candidates")
     size.fill("-3")  # typed while the solver boots: the first solve is already invalid
     wait_ready(page)
     expect(page.locator("#f-size-error")).to_be_visible()
-    expect(summary(page)).to_contain_text("Fix the marked entry to see the plan")
+    # The prerendered demo answer stays on screen, marked as not matching the entries.
+    expect(summary(page)).to_contain_text("Fix the marked entry")
+    expect(summary(page)).to_have_class(re.compile("is-stale"))
     expect(size).to_have_value("-3")
 
 

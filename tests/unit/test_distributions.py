@@ -17,8 +17,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import integrate, special, stats
 
-from seqpick.distributions import (SMALL_SAMPLE, Normal, Sample, Uniform, from_scores,
-                                   norm_cdf, norm_pdf, norm_ppf, norm_sf)
+from seqpick.distributions import (SMALL_SAMPLE, TIE_TOL, Normal, Sample, Uniform,
+                                   from_scores, norm_cdf, norm_pdf, norm_ppf, norm_sf)
 from seqpick.errors import ScenarioError
 from seqpick.scenario import Scores
 
@@ -151,9 +151,14 @@ def test_from_scores():
     assert e.value.field == "scores.values"
 
 
+def _two_scores(v):
+    """At least two scores that are not ties (TIE_TOL): a valid sample."""
+    return max(v) - min(v) > TIE_TOL * max(1.0, abs(max(v)), abs(min(v)))
+
+
 @settings(max_examples=60, deadline=None)
 @given(st.lists(st.floats(-1e6, 1e6, allow_nan=False), min_size=2, max_size=40).filter(
-    lambda v: len(set(v)) >= 2), st.floats(0.0, 1.0))
+    _two_scores), st.floats(0.0, 1.0))
 def test_sample_properties(vals, u):
     d = Sample(vals)
     x = d.quantile(u)
@@ -168,3 +173,14 @@ def test_sample_properties(vals, u):
     assert ex[1] >= ex[2] - 1e-9 * scale
     assert ex[2] >= -1e-9 * scale
     assert d.emax(x) >= max(d.mean, x) - 1e-9 * scale
+
+
+def test_sample_near_ties_are_ties():
+    # two scores one unit in the last place apart cannot be told apart by the
+    # interpolated quantiles: they count as a tie (TIE_TOL), so the values must
+    # differ by more than that to make a distribution
+    with pytest.raises(ValueError):
+        Sample([-1000000.0, -999999.9999999999])
+    d = Sample([5.0, 5.0 + 1e-8, 6.0])
+    assert d.distinct == 2
+    assert d.fs == pytest.approx([0.0, 1.0 / 3.0, 5.0 / 6.0, 1.0], abs=1e-15)

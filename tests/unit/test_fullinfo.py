@@ -584,3 +584,106 @@ def test_properties(sp):
     if sp["p"] == 1.0 and (goal == "best" or sp["cost"] == 0.0):
         b = [x for x in r.policy.score_thresholds if x is not None]
         assert all(x >= y - 1e-12 for x, y in zip(b, b[1:]))
+
+
+# --------------------------------------------------------------------------
+# the fast paths against the direct ones
+# --------------------------------------------------------------------------
+
+@pytest.mark.parametrize("p", [1.0, 0.7, 0.25, 0.03])
+def test_taylor_decision_numbers_vs_newton(p):
+    # the Taylor polynomial of w(1/k) (Cauchy integral) against Newton's method
+    # on (GM) for every k, and against brentq at a few k
+    n = 4000
+    b, bc = F.decision_numbers(n, p)
+    b0, bc0 = F._decision_numbers_newton(n, p)
+    coef, kmin = F._w_taylor(p)
+    assert kmin < n
+    for k in range(1, n):
+        assert bc[k] == pytest.approx(bc0[k], rel=3e-15)
+        assert b[k] + bc[k] == pytest.approx(1.0, abs=4.5e-16)   # 2 ulps
+    rho = [0.0, p]
+    for y in range(2, 400):
+        rho.append(rho[-1] * (y - p) / y)
+    for k in (kmin, 3 * kmin, 3999):
+        def h(z, k=k):
+            t, s = 1.0, 0.0
+            for y in range(1, 200):
+                t *= (k - y + 1) / y * z
+                s += t * rho[y]
+            return s - 1.0
+        z = optimize.brentq(h, 1e-6, 50.0 / k, xtol=1e-18, rtol=1e-15)
+        assert bc[k] / b[k] == pytest.approx(z, rel=1e-13)
+
+
+@pytest.mark.parametrize("n,p", [(600, 1.0), (600, 0.6), (2500, 1.0), (2500, 0.7)])
+def test_summation_formula_vs_direct_sum(n, p):
+    # the stage sums of the optimal rule by Euler-Maclaurin/Gregory against the
+    # stage-by-stage sum (both exact to rounding)
+    a, ac = F.best_bars(n, p)
+    for must in (False, True):
+        d = F._r2_core(n, a, ac, p, forced=must, co=F._Coef(p))
+        e = F._r2_core_opt(n, a, ac, p, must, F._Coef(p))
+        assert e is not None
+        assert e.win == pytest.approx(d.win, abs=1e-13)
+        assert e.none_reg == pytest.approx(d.none_reg, abs=1e-13)
+        assert e.forced_mass == pytest.approx(d.forced_mass, abs=1e-13)
+        assert e.seen == pytest.approx(d.seen, rel=1e-13)
+        L = max(len(d.piJ), len(e.piJ))
+        assert d.piJ + [0.0] * (L - len(d.piJ)) == pytest.approx(
+            e.piJ + [0.0] * (L - len(e.piJ)), abs=1e-13)
+    if p == 1.0:
+        for dist in (Uniform(0, 100), Normal(70, 10), Sample(SAMPLE_VALUES * 30)):
+            for must in (False, True):
+                r0 = F._r2_scores(n, a, ac, dist, must)
+                r1 = F._r2_scores_opt(n, a, ac, dist, must, 1.0)
+                assert r1 is not None
+                assert r1[0] == pytest.approx(r0[0], rel=1e-13)
+                assert r1[1] == pytest.approx(r0[1], rel=1e-12, abs=1e-12)
+    assert F._r2_core_opt(150, *F.best_bars(150, p), p, True, F._Coef(p)) is None
+
+
+def test_narrow_cell_kernel_vs_quad():
+    # a stage interval of width 8e-9 next to 1: the kernel must use the complements
+    # (a difference of two numbers near 1 would lose 8 digits); checked in x = (1-u)/u,
+    # where int u^e C(K,y) u^(K-y) (1-u)^y du = C(K,y) int x^y (1+x)^-(N+1) dx
+    N, K = 20000, 10000
+    z0, z1 = 0.80435 / (K + 1.0), 0.80435 / K        # bars b = 1/(1+z)
+    lo, loc = 1.0 / (1.0 + z1), z1 / (1.0 + z1)
+    hi, hic = 1.0 / (1.0 + z0), z0 / (1.0 + z0)
+    C = F._cell_kernel(N, K, N - 1 - K, lo, loc, hi, hic, 6)
+    for y in range(7):
+        want = comb(K, y) * integrate.quad(lambda x: x ** y * (1.0 + x) ** -(N + 1), z0, z1,
+                                           epsabs=0, epsrel=1e-13)[0]
+        assert C[y] == pytest.approx(want, rel=1e-12)
+
+
+def test_upper_z_chain_vs_ndtri():
+    from scipy.special import ndtri
+    for n, p in [(3000, 1.0), (50000, 0.7)]:
+        a, ac = F.best_bars(n, p)
+        z = F._upper_z_chain(ac[1:])
+        for i in list(range(0, n - 1, 97)) + [n - 2]:
+            want = -ndtri(ac[i + 1])
+            assert z[i] == pytest.approx(want, abs=4e-15 * max(1.0, abs(want)))
+        assert z[n - 1] == -math.inf          # the last bar is 0
+
+
+def test_score_bars_inlined_paths_agree_with_upper_parts():
+    class Plain:        # hides the type, so the generic upper_parts path is taken
+        def __init__(self, d):
+            self.d, self.mean = d, d.mean
+
+        def upper_parts(self, c):
+            return self.d.upper_parts(c)
+
+        def excess(self, c):
+            return self.d.excess(c)
+
+    for d, m in [(Normal(70, 10), 1), (Sample(SAMPLE_VALUES), 3)]:
+        a = F.score_bars(500, m, 0.8, 0.2, True, d)
+        b = F.score_bars(500, m, 0.8, 0.2, True, Plain(d))
+        for r in range(1, m + 1):
+            assert list(a.bars[r]) == pytest.approx(list(b.bars[r]), abs=1e-13)
+            assert list(a.upq[r]) == pytest.approx(list(b.upq[r]), abs=1e-15)
+            assert list(a.pab[r]) == pytest.approx(list(b.pab[r]), abs=1e-12)

@@ -236,3 +236,151 @@ def test_properties(p, q, must, skips):
     total_odds = sum(x / (1 - x) if x < 1 else math.inf for x in p)
     if q == 1.0 and total_odds >= 1.0:
         assert r.success_probability >= 1.0 / math.e - 1e-12   # Bruss 2003 lower bound
+
+
+# --- the "event" field of live advice ------------------------------------------------
+
+def _seen_events(events):
+    return [{"event": e} for e in events]
+
+
+def test_event_field_matches_relative_rank_and_brute_force():
+    p = [1.0 / k for k in range(1, 11)]
+    sc = {"pool": {"chances": p}}
+    r = solve(sc)
+    for k in range(1, 11):
+        for event in (True, False):
+            a = advise(sc, _seen_events([True] * (k - 1) + [event]))
+            plan = "offer" if event and k > r.policy.skip else "pass"
+            assert a.decision == plan
+            zk = math.prod(1 - x for x in p[k:])
+            assert a.offer_value == pytest.approx(zk if event else 0.0, abs=1e-15)
+            want = _brute_rule_win(p, max(k + 1, r.policy.skip + 1)) if k < 10 else 0.0
+            assert a.pass_value == pytest.approx(want, abs=1e-12)
+            if k > 1 or event:      # the same advice through relative_rank
+                b = advise(sc, [{"relative_rank": 1}] * (k - 1)
+                           + [{"relative_rank": 1 if event else 2}])
+                assert (b.decision, b.offer_value, b.pass_value) == \
+                    (a.decision, a.offer_value, a.pass_value)
+
+
+def test_first_stage_without_event():
+    # relative_rank can only say 1 at the first stage; event can say "no event"
+    p = [0.5, 0.2, 0.9]
+    a = advise({"pool": {"chances": p}}, [{"event": False}])
+    assert a.decision == "pass" and a.offer_value == 0.0
+    assert a.pass_value == pytest.approx(_brute_optimum(p[1:]), abs=1e-12)
+    both = advise({"pool": {"chances": p}}, [{"event": True, "relative_rank": 1},
+                                            {"event": False, "relative_rank": 2}])
+    assert both.decision == "pass"
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_event_advice_with_declines_and_cost_matches_brute_force(seed):
+    rng = random.Random(300 + seed)
+    n = rng.randint(2, 7)
+    p = [rng.random() for _ in range(n)]
+    q = rng.choice([0.4, 0.8])
+    c = rng.choice([0.0, 0.02])
+    sc = {"pool": {"chances": p}, "accept_probability": q, "cost_per_candidate": c}
+    for k in range(1, n + 1):
+        for event in (True, False):
+            a = advise(sc, _seen_events([False] * (k - 1) + [event]))
+            later = _brute_optimum(p[k:], q, c) if k < n else 0.0   # stages are independent
+            assert a.pass_value == pytest.approx(later, abs=1e-12)
+            zk = math.prod(1 - x for x in p[k:])
+            offer = (q * zk if event else 0.0) + (1 - q) * later
+            assert a.offer_value == pytest.approx(offer, abs=1e-12)
+            if abs(offer - later) > 1e-9:
+                assert (a.decision == "offer") == (event and offer > later)
+
+
+@pytest.mark.parametrize("seen,field", [
+    ([{"event": 1}], "seen.0.event"),
+    ([{"event": "yes"}], "seen.0.event"),
+    ([{"event": True}, {"label": "B"}], "seen.1.event"),
+    ([{"event": True}, {"event": True, "relative_rank": 2}], "seen.1.event"),
+    ([{"event": False, "relative_rank": 1}], "seen.0.event"),
+])
+def test_event_field_is_validated(seen, field):
+    with pytest.raises(ScenarioError) as e:
+        advise({"pool": {"chances": [0.5, 0.5, 0.5]}}, seen)
+    assert e.value.field == field
+
+
+def test_event_field_only_for_chances():
+    with pytest.raises(ScenarioError) as e:
+        advise({"pool": {"size": 5}}, [{"relative_rank": 1, "event": True}])
+    assert e.value.field == "seen.0.event"
+    assert "unknown field" in e.value.message
+
+
+# --- the running-product evaluations against the stage-by-stage recursions ---------
+
+def _loop_rule(p, start, q, must):
+    """Stage-by-stage evaluation of "offer at the first event from stage `start` on"."""
+    n = len(p)
+    z = [1.0] * (n + 2)
+    for k in range(n, 0, -1):
+        z[k] = (1 - p[k - 1]) * z[k + 1]
+    alive, win, other, forced, seen = 1.0, 0.0, 0.0, 0.0, 0.0
+    for k in range(1, n + 1):
+        seen += alive
+        pk = p[k - 1]
+        if must and k == n:
+            win += alive * pk * q
+            forced += alive * (1 - pk) * q
+            alive *= 1 - q
+        elif k >= start:
+            hire = alive * pk * q
+            win += hire * z[k + 1]
+            other += hire * (1 - z[k + 1])
+            alive -= hire
+    return win, other, alive, forced, seen
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_vectorised_paths_match_the_recursions(seed):
+    rng = random.Random(700 + seed)
+    n = 3000 + 500 * seed
+    p = [rng.random() ** 4 for _ in range(n)]
+    if seed == 1:
+        p[17] = 1.0               # one certain stage early on
+    if seed == 2:
+        p[n // 2] = 0.0
+    for q, must in ((1.0, False), (1.0, True), (0.6, False), (0.6, True)):
+        r = solve({"pool": {"chances": p}, "accept_probability": q, "must_hire": must,
+                   "compare": [{"skip": 0}, {"skip": n // 3}]})
+        w = odds.suffix_tables(p, q).w
+        for skip, val in zip(r.curve.skips, r.curve.success):
+            assert val == pytest.approx(w[skip + 1], abs=1e-13)
+        start = r.policy.skip + 1 if r.policy.skip is not None else None
+        for res, st in [(r, start), (r.compare[0], 1), (r.compare[1], n // 3 + 1)]:
+            if st is None:
+                continue
+            win, other, none, forced, seen = _loop_rule(p, st, q, must)
+            assert res.success_probability == pytest.approx(win, abs=1e-13)
+            assert res.outcome.other == pytest.approx(other, abs=1e-13)
+            assert res.outcome.none == pytest.approx(none, abs=1e-13)
+            assert res.outcome.forced_last == pytest.approx(forced, abs=1e-13)
+            assert res.expected_interviews == pytest.approx(seen, rel=1e-13)
+    s_idx, total = odds.odds_start(p)
+    ref_total, ref_s = 0.0, 1
+    for k in range(n, 0, -1):
+        if p[k - 1] >= 1.0:
+            ref_s, ref_total = k, math.inf
+            break
+        ref_total += p[k - 1] / (1 - p[k - 1])
+        if ref_total >= 1.0:
+            ref_s = k
+            break
+    assert (s_idx, total) == (ref_s, ref_total)
+
+
+def test_two_certain_stages():
+    # with two certain events from s on, W_s = 0; after the second one, the usual sum
+    p = [0.3, 1.0, 0.2, 1.0, 0.1, 0.4]
+    r = solve({"pool": {"chances": p}})
+    for skip, val in zip(r.curve.skips, r.curve.success):
+        assert val == pytest.approx(_brute_rule_win(p, skip + 1), abs=1e-15)
+    assert r.policy.skip == 3 and r.success_probability == pytest.approx(0.9 * 0.6)

@@ -1,7 +1,7 @@
 """The pool-size prior: Poisson pmf, pool forms, survival function.
 
 Independent checks: scipy.stats (Poisson pmf and tail), exact fractions for
-the uniform and weighted forms.
+the uniform and weighted forms, math.fsum for the split sum.
 """
 
 from __future__ import annotations
@@ -13,7 +13,7 @@ from scipy import stats
 
 from seqpick.errors import ScenarioError
 from seqpick.prior import (poisson_pmf, pool_prior, prior_mean, single_size, suffix_sums,
-                           survival)
+                           survival, wide_fsum)
 from seqpick.scenario import ChancesPool, parse_scenario
 
 
@@ -82,3 +82,35 @@ def test_survival_and_helpers():
     # tails keep their relative precision (summed from the top)
     tiny = [1.0 - 2e-20, 1e-20, 1e-20]
     assert survival(tiny)[1] == pytest.approx(2e-20, rel=1e-15)
+
+
+def test_wide_fsum_equals_fsum():
+    """The split sum equals math.fsum (exactly rounded) on wide-range inputs."""
+    import random
+    rng = random.Random(7)
+    for _ in range(300):
+        w = [rng.random() * 10.0 ** rng.randint(-300, 3) for _ in range(rng.randint(1, 400))]
+        assert wide_fsum(w) == math.fsum(w)
+    pmf = poisson_pmf(8000.0, _pool({"size_mean": 8000.0}).max_size)
+    assert wide_fsum(pmf) == math.fsum(pmf)
+    assert wide_fsum([]) == 0.0 and wide_fsum([0.0, 0.0]) == 0.0
+
+
+def test_poisson_pmf_has_no_subnormals():
+    """Values below the smallest normal float are 0 (they carry no digits and
+    make sums over them slow); the rest still match scipy."""
+    import sys
+    mean = 8000.0
+    max_n = _pool({"size_mean": mean}).max_size
+    pmf = poisson_pmf(mean, max_n)
+    assert all(x == 0.0 or x >= sys.float_info.min for x in pmf)
+    ref = stats.poisson.pmf(range(max_n + 1), mean)
+    for n in (4500, 6000, 8000, 9000, max_n):
+        assert pmf[n] == pytest.approx(ref[n], rel=1e-11)
+    assert pmf.count(0.0) > 3000                    # the far lower tail underflows
+
+
+def test_weights_prior_ignores_trailing_zeros():
+    pr = pool_prior(_pool({"size_weights": [0, 2, 0, 1, 0, 0, 0]}))
+    assert pr == [0.0, 0.0, pytest.approx(2 / 3), 0.0, pytest.approx(1 / 3)]
+    assert len(pr) == _pool({"size_weights": [0, 2, 0, 1, 0, 0, 0]}).max_size + 1

@@ -24,6 +24,7 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from scipy import stats
 
 from brute_rank import Brute, evaluate, skip_success
 from seqpick import advise
@@ -308,27 +309,127 @@ def test_simulation(sc, runs):
 # two exact evaluators agree
 # --------------------------------------------------------------------------
 
-@pytest.mark.parametrize("sc", [
-    {"pool": {"size": 900}, "accept_probability": 0.6, "compare": [{"skip": 100}]},
-    {"pool": {"size": 700}, "goal": {"type": "top", "k": 4}},
-    {"pool": {"size": 400}, "goal": {"type": "rank"}, "cost_per_candidate": 0.01},
-])
-def test_hypergeometric_table_matches_rank_push(sc):
+def _rules(sc):
     s = parse_scenario(sc)
     plan = R._plan(s)
     md = plan.md
     rules = [R._optimal_rule(md, plan, "")] + R._compare(md, plan, s)
+    return md, rules, [R._core(md, rl) for rl in rules]
+
+
+@pytest.mark.parametrize("sc", [
+    {"pool": {"size": 900}, "accept_probability": 0.6, "compare": [{"skip": 100}]},
+    {"pool": {"size": 700}, "goal": {"type": "top", "k": 4}},
+    {"pool": {"size": 400}, "goal": {"type": "rank"}, "cost_per_candidate": 0.01},
+    {"pool": {"size": 300}, "goal": {"type": "rank"}, "must_hire": True,
+     "accept_probability": 0.7},
+    {"pool": {"size": 250}, "cost_per_candidate": 0.004, "accept_probability": 0.5},
+    {"pool": {"size": 60}, "must_hire": True, "accept_probability": 0.6,
+     "compare": [{"skip": 59}]},
+])
+def test_hypergeometric_tails_match_rank_push(sc):
+    """P(rank <= K) from hypergeometric tails (_fixed_tails) against the full
+    stage-by-stage push of the relative rank (_push), every K of the table."""
+    md, rules, cores = _rules(sc)
     n = md.fixed_n
-    keys = sorted({1, 2, 3, 5, 10, n // 10, n // 4, n // 2})
-    p0 = R._p0_tables(n, keys)
-    for rl in rules:
-        core = R._core(md, rl)
-        hyp = R._hyper_top(md, rl, core, keys, p0)
+    keys = sorted({1, 2, 3, 5, 10, n // 10, n // 4, n // 2, n - 1})
+    for rl, core in zip(rules, cores):
+        tails = R._fixed_tails(md, rl, core, keys)
         fin, _b, none, _sh = R._push(md, rl, n)
         cum = np.cumsum(fin)
         for K in keys:
-            assert hyp[K] == pytest.approx(cum[K], abs=1e-12)
+            assert tails[K] == pytest.approx(cum[K], abs=1e-12), K
         assert none == pytest.approx(core.none, abs=1e-13)
+
+
+@pytest.mark.parametrize("sc", [
+    {"pool": {"size": 300}, "accept_probability": 0.7, "compare": [{"skip": 0}, {"skip": 250}]},
+    {"pool": {"size": 120}, "cost_per_candidate": 0.01, "accept_probability": 0.4},
+    {"pool": {"size": 90}, "must_hire": True, "accept_probability": 0.5,
+     "compare": [{"skip": 89}, {"skip": 3}]},
+    {"pool": {"size": 50}, "goal": {"type": "top", "k": 3}, "compare": [{"skip": 20}]},
+    {"pool": {"size": 2}}, {"pool": {"size": 1}, "accept_probability": 0.3},
+])
+def test_tau_recurrence_matches_rank_push(sc):
+    """The first-order recurrence over ranks (_tau_head) against the push."""
+    md, rules, cores = _rules(sc)
+    n = md.fixed_n
+    for rl, core in zip(rules, cores):
+        if not all(t in (0, 1, R._ANYONE) for _s, _e, t in R._rule_runs(md, rl, 1)):
+            continue
+        head = R._tau_head(md, rl, core, n)
+        fin, _b, _none, _sh = R._push(md, rl, n)
+        assert head == pytest.approx(list(fin[1:n + 1]), abs=1e-13)
+
+
+@pytest.mark.parametrize("sc", [
+    {"pool": {"size": 200}, "goal": {"type": "rank"}, "accept_probability": 0.8},
+    {"pool": {"size": 150}, "goal": {"type": "top", "k": 5}, "must_hire": True,
+     "accept_probability": 0.6},
+    {"pool": {"size_min": 3, "size_max": 120}, "accept_probability": 0.6,
+     "compare": [{"skip": 10}]},
+    {"pool": {"size_min": 0, "size_max": 90}, "goal": {"type": "rank"},
+     "cost_per_candidate": 0.02},
+    {"pool": {"size_mean": 60.0}, "goal": {"type": "top", "k": 2}},
+    {"pool": {"size_weights": [0, 1, 0, 3, 0, 0, 2, 5, 1] * 8}, "cost_per_candidate": 0.01},
+    {"pool": {"size": 120}, "openings": 3, "accept_probability": 0.7},
+    {"pool": {"size_min": 20, "size_max": 100}, "openings": 2, "compare": [{"skip": 15}]},
+    {"pool": {"size": 80}, "openings": 2, "must_hire": True, "accept_probability": 0.5},
+])
+def test_prefix_sum_ranks_match_rank_push(sc):
+    """The prefix-sum method (_e_head, any pool, openings) against the push:
+    ranks 1..R, and the share columns summed over the pool size."""
+    md, rules, cores = _rules(sc)
+    for rl, core in zip(rules, cores):
+        if md.m > 1 and R._beyond_best(md, rl, core, range(1, md.m)):
+            continue
+        Rr = min(md.M, 160)
+        cuts = R._share_cuts(md)
+        head, shares = R._e_head(md, rl, core, Rr, cuts)
+        fin, _b, _none, pshares = R._push(md, rl, md.M)
+        assert head == pytest.approx(list(fin[1:Rr + 1]), abs=1e-13)
+        if Rr == md.M and md.fixed_n is None:       # shares summed over the size n
+            for x in shares:
+                assert shares[x] == pytest.approx(pshares[x], abs=1e-12)
+
+
+@pytest.mark.parametrize("t,K,i,N", [(1, 5, 3, 10), (3, 7, 9, 20), (2, 40, 30, 100),
+                                     (5, 300, 40, 1000), (12, 500, 30, 1000),
+                                     (30, 600, 50, 1000), (8, 20, 990, 1000),
+                                     (200, 2500, 900, 10000), (400, 5000, 800, 10000),
+                                     (2, 3, 9998, 10000), (60, 1000, 800, 10000)])
+def test_hypergeometric_min_mean(t, K, i, N):
+    """E[min(H, t)], H ~ Hypergeometric (scipy.stats), and the Loader pmf."""
+    H = stats.hypergeom(N, K, i)
+    hs = np.arange(0, min(K, i) + 1)
+    exact = float(np.sum(np.minimum(hs, t) * H.pmf(hs)))
+    assert R._min_mean(t, K, i, N) == pytest.approx(exact, abs=1e-12, rel=1e-12)
+    for h in {max(0, i - (N - K)), min(t, K, i) - 1, int(i * K / N)}:
+        if 0 <= h <= min(K, i) and H.pmf(h) > 1e-250:
+            assert R._dhyper(h, K, i, N) == pytest.approx(H.pmf(h), rel=1e-12)
+
+
+def test_sure_from_is_the_boundary():
+    for t, K, N in [(1, 10, 100), (5, 1000, 10000), (40, 2500, 10000), (3, 99, 100),
+                    (700, 5000, 10000), (9, 50_000, 100_000)]:
+        i0 = R._sure_from(t, K, N)
+        assert R._sure(t, K, i0, N)
+        assert i0 == 1 or not R._sure(t, K, i0 - 1, N)
+        assert all(R._sure(t, K, i, N) for i in range(i0, min(N, i0 + 500)))
+
+
+@given(st.lists(st.integers(0, 6), min_size=1, max_size=60))
+@settings(max_examples=60, deadline=None)
+def test_runs_and_groups_rebuild_the_thresholds(raw):
+    thr = [0] + [min(v, i) for i, v in enumerate(raw, start=1)]
+    runs = R._runs_of(thr, len(raw))
+    back = [0]
+    for s_, e_, t in runs:
+        assert s_ <= e_
+        back += list(range(s_, e_ + 1)) if t == R._ANYONE else [t] * (e_ - s_ + 1)
+        assert t != R._ANYONE or s_ >= 2
+    assert back == thr
+    assert all(a[1] + 1 == b[0] for a, b in zip(runs, runs[1:]))
 
 
 @pytest.mark.parametrize("pool", [{"size": 30}, {"size_min": 4, "size_max": 30},
@@ -385,10 +486,71 @@ def test_large_pool_curve_and_fields():
                   "compare": [{"skip_share": 0.25}]})
     assert not res.curve.complete and len(res.curve.skips) <= 1001
     assert res.policy.skip in res.curve.skips
-    assert res.rank_distribution is None                 # beyond the work limit
-    assert res.top is not None and res.top["1"] == pytest.approx(res.success_probability)
+    for rr in [res] + list(res.compare):
+        d = rr.rank_distribution                   # the rank recurrence: 200 ranks
+        assert len(d.probabilities) == 200
+        assert d.probabilities[0] == pytest.approx(rr.success_probability, abs=1e-13)
+        assert math.fsum(d.probabilities) + d.rest + d.none == pytest.approx(1, abs=1e-12)
+        assert rr.top["1"] == pytest.approx(rr.success_probability, abs=1e-13)
+        assert rr.top["2"] == pytest.approx(math.fsum(d.probabilities[:2]), abs=1e-13)
     assert res.compare[0].rule == {"skip_share": 0.25}
     json.dumps(res.to_dict(), allow_nan=False)
+
+
+@pytest.mark.parametrize("sc", [
+    {"pool": {"size": 10_000}, "goal": {"type": "rank"}, "accept_probability": 0.7},
+    {"pool": {"size": 10_000}, "goal": {"type": "top", "k": 10}},
+    {"pool": {"size_min": 1, "size_max": 10_000}, "accept_probability": 0.7,
+     "cost_per_candidate": 1e-5},
+    {"pool": {"size_mean": 8000.0}, "goal": {"type": "rank"}},
+    {"pool": {"size": 5000}, "openings": 3, "accept_probability": 0.8},
+])
+def test_large_pool_rank_head(sc):
+    """Shortened rank lists at large sizes: exact head, rest + none fill to 1,
+    the first rank equals the exact chance of hiring the best; a known size
+    with one opening keeps ranks 1..10 and the whole top-m table."""
+    s = parse_scenario(sc)
+    res = R.solve_rankdp(s)
+    d = res.rank_distribution
+    assert d is not None and 1 <= len(d.probabilities) <= 200
+    assert math.fsum(d.probabilities) + d.rest + d.none == pytest.approx(1, abs=1e-12)
+    assert d.rest >= 0 and d.none == pytest.approx(res.p_no_hire, abs=1e-15)
+    assert d.probabilities[0] == pytest.approx(res.outcome.best if s.goal.type != "top"
+                                               else d.probabilities[0], abs=1e-12)
+    if "size" in sc["pool"] and s.openings == 1:
+        assert len(d.probabilities) >= 10 and res.top is not None
+        for K in (1, 2, 3, 5, 10):
+            assert res.top[str(K)] == pytest.approx(math.fsum(d.probabilities[:K]),
+                                                    abs=1e-12)
+    if len(d.probabilities) < 200:
+        assert any("lists ranks 1.." in n for n in res.notes)
+
+
+def test_rank_head_matches_push_when_shortened():
+    """Where the list is cut for work (uncertain size, 1,500 candidates), the
+    listed ranks are still exactly the push's."""
+    sc = {"pool": {"size_min": 1, "size_max": 1500}, "accept_probability": 0.8}
+    s = parse_scenario(sc)
+    res = R.solve_rankdp(s)
+    plan = R._plan(s)
+    rl = R._optimal_rule(plan.md, plan, "")
+    k = len(res.rank_distribution.probabilities)
+    assert k < 200
+    fin, _b, _none, _sh = R._push(plan.md, rl, k)
+    assert res.rank_distribution.probabilities == pytest.approx(list(fin[1:k + 1]), abs=1e-13)
+
+
+def test_policy_groups_are_group_thresholds():
+    from seqpick.results import group_thresholds
+    for sc in ({"pool": {"size": 3000}, "goal": {"type": "rank"}},
+               {"pool": {"size": 400}, "goal": {"type": "rank"}, "cost_per_candidate": 0.2},
+               {"pool": {"size": 300}, "goal": {"type": "top", "k": 6},
+                "cost_per_candidate": 0.01},
+               {"pool": {"size": 500}, "cost_per_candidate": 0.003},
+               {"pool": {"size_mean": 50.0}, "goal": {"type": "rank"},
+                "cost_per_candidate": 0.1}):
+        res = _solve(sc)
+        assert res.policy.groups == group_thresholds(res.policy.thresholds)
 
 
 # --------------------------------------------------------------------------

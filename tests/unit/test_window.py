@@ -54,10 +54,50 @@ def _g_scipy(k: int, mu: float) -> float:
     return float(np.sum(stats.poisson.pmf(m, mu) * c))
 
 
-@pytest.mark.parametrize("k", [1, 2, 3, 5, 10, 40, 200])
+@pytest.mark.parametrize("k", [1, 2, 3, 5, 10, 40, 127, 128, 200, 1000])
 def test_threshold_matches_brentq(k):
-    root = optimize.brentq(lambda mu: _g_scipy(k, mu), 0.5, 2.0 * k + 5.0, xtol=1e-13)
-    assert w.threshold(k) == pytest.approx(root, rel=1e-9, abs=1e-10)
+    # the chain of exact moves against brentq on an independent scipy sum
+    root = optimize.brentq(lambda mu: _g_scipy(k, mu), 0.5, 2.0 * k + 5.0, xtol=1e-13,
+                           rtol=1e-15)
+    assert w.threshold(k) == pytest.approx(root, rel=1e-13)
+
+
+@pytest.mark.parametrize("k", [1, 2, 63, 64, 129, 255, 1023, 1024, 5000, 33333])
+def test_threshold_chain_matches_direct_root_finding(k):
+    # segment starts, chain steps just before/after the extrapolation switch, large k
+    assert w.threshold(k) == pytest.approx(w._direct_root(k), rel=2e-14)
+
+
+def test_thresholds_do_not_depend_on_the_order_of_requests():
+    ks = [1, 2, 130, 300, 3000, 3001, 3100, 20000]
+    w._clear_caches()
+    first = [w.threshold(k) for k in ks]
+    w._clear_caches()
+    second = [w.threshold(k) for k in reversed(ks)][::-1]
+    w._clear_caches()
+    w.threshold(3127)           # a whole segment at once, then a prefix of another
+    third = [w.threshold(k) for k in ks]
+    assert first == second == third
+
+
+@pytest.mark.parametrize("n,mu", [(1, 2.12), (3, 5.35), (40, 68.8), (3000, 5154.0)])
+def test_count_and_time_moves_match_direct_sums(n, mu):
+    s, z, y = w._direct_triple(n, mu)
+    ss, us, vs = w._forward_uv(n, mu, s, z, y, 12)
+    # the count move contracts errors while n + d < mu; beyond, it may amplify them,
+    # which the Poisson weights of the time move then make harmless (checked below)
+    for d in [d for d in (1, 5, 12) if n + d < mu]:
+        ds, dz, dy = w._direct_triple(n + d, mu)
+        assert ss[d] == pytest.approx(ds, rel=1e-12)
+        assert us[d] - w._hdiff(n - 1, n + d - 1) * ss[d] == pytest.approx(dz, rel=1e-12)
+        assert vs[d] - w._hdiff(n - 1, n + d - 1) == pytest.approx(dy, rel=1e-12)
+    # time move by delta with 23 Poisson terms
+    delta = 1.7
+    ss, us, vs = w._forward_uv(n, mu, s, z, y, w._D)
+    p = w._pd(delta, w._D)
+    moved = [math.fsum(a * b for a, b in zip(p, col)) for col in (ss, us, vs)]
+    want = w._direct_triple(n, mu + delta)
+    assert moved == pytest.approx(list(want), rel=1e-14)
 
 
 def test_xstar_matches_brentq():
@@ -73,6 +113,54 @@ def test_thresholds_increase_with_k_and_grow_like_e_minus_1():
     assert 0.40 < excess[0] < 0.41                          # x_1 = 2.1198...
     assert all(0.085 < e < 0.41 for e in excess)
     assert abs(w.threshold(5000) - (E - 1.0) * 5000 - 0.089) < 2e-3
+
+
+def _order_statistics_value(k0: int, mu0: float):
+    """(win, hire, interviews) of the threshold rule from "k0 seen, mu0 to come",
+    by a different route than seqpick.window: condition on the number m of new
+    arrivals; arrival i = k0 + j is active iff its time share U_(j) >= v_i =
+    1 - x_i / mu0, so the first active index J has P(J <= i | m) =
+    P(Bin(m, v_i) <= j - 1), and given J = i and n = k0 + m seen in all the rule
+    wins with (i-1)/n (H_{n-1} - H_{i-2}) (1/n if i = 1), hires with
+    (n - i + 1)/n and sees (i-1)(H_{n-1} - H_{i-2} + 1) (1 if i = 1); no active
+    arrival: nothing won, n seen."""
+    m_max = int(mu0 + 40 * math.sqrt(mu0) + 40)
+    h = _hnum(k0 + m_max + 2)
+    x = np.array([w.threshold(i) for i in range(k0 + 1, k0 + m_max + 1)])
+    v = np.maximum(0.0, 1.0 - x / mu0)
+    win = hire = seen = 0.0
+    lp = -mu0 + np.arange(m_max + 1) * math.log(mu0) - np.array(
+        [math.lgamma(m + 1.0) for m in range(m_max + 1)])
+    for m in range(0, m_max + 1):
+        pm = math.exp(lp[m])
+        n = k0 + m
+        if m == 0:
+            seen += pm * n
+            continue
+        j = np.arange(1, m + 1)
+        i = k0 + j
+        g = stats.binom.cdf(j - 1, m, v[:m])
+        pj = np.diff(np.concatenate([[0.0], g]))          # P(J = i | m)
+        if k0 == 0:
+            wi = np.where(i == 1, 1.0 / n, (i - 1) / n * (h[n - 1] - h[np.maximum(i - 2, 0)]))
+            ei = np.where(i == 1, 1.0, (i - 1) * (h[n - 1] - h[np.maximum(i - 2, 0)] + 1.0))
+        else:
+            wi = (i - 1) / n * (h[n - 1] - h[i - 2])
+            ei = (i - 1) * (h[n - 1] - h[i - 2] + 1.0)
+        win += pm * float(np.sum(pj * wi))
+        hire += pm * float(np.sum(pj * (n - i + 1) / n))
+        seen += pm * (float(np.sum(pj * ei)) + (1.0 - g[-1]) * n)
+    return win, hire, seen
+
+
+@pytest.mark.parametrize("k0,mu0", [(0, 3.0), (0, 30.0), (0, 150.0), (1, 0.7), (3, 10.0),
+                                    (20, 60.0), (20, 30.0), (40, 50.0), (60, 120.0)])
+def test_rule_value_matches_order_statistics(k0, mu0):
+    rv = w.rule_value(k0, mu0)
+    win, hire, seen = _order_statistics_value(k0, mu0)
+    assert rv.win == pytest.approx(win, abs=1e-12)
+    assert rv.hire == pytest.approx(hire, abs=1e-12)
+    assert rv.interviews == pytest.approx(seen, rel=1e-12)
 
 
 def test_stay_best_chance_matches_hypergeometric_function():
@@ -220,6 +308,45 @@ def test_clock_rule_matches_quadrature(lam, x):
     val, _ = integrate.quad(lambda v: a * math.exp(-a * v) * psi(b * v), 0.0, 1.0,
                             epsabs=1e-13, epsrel=1e-12, limit=200)
     assert w.clock_rule(x, lam).win == pytest.approx(val + math.exp(-a) * psi(b), abs=1e-9)
+
+
+def _clock_win_series(x: float, lam: float) -> float:
+    """The series form x E[L_{M-1}(1-x)] + e^{-x lam} psi((1-x) lam), summed term by term."""
+    q = 1.0 - x
+    m = np.arange(0, int(lam + 40 * math.sqrt(lam) + 60))
+    pm = stats.poisson.pmf(m, lam)
+    n = np.arange(1, len(m))
+    lj = np.concatenate([[0.0], np.cumsum(q ** n / n)])         # L_0 .. L_{len-1}
+    series = float(np.sum(pm[1:] * lj[m[1:] - 1]))
+    b = q * lam
+    mb = np.arange(1, int(b + 40 * math.sqrt(b) + 60))
+    psi = float(np.sum(stats.poisson.pmf(mb, b) / mb)) if b > 0 else 0.0
+    return x * series + math.exp(-x * lam) * psi
+
+
+@pytest.mark.parametrize("lam", [0.05, 1.0, 7.0, 60.0, 400.0])
+def test_clock_closed_form_matches_the_series(lam):
+    for x in (0.0, 1e-4, 0.01, 0.2, 1.0 / E, 0.75, 0.999):
+        assert w.clock_rule(x, lam).win == pytest.approx(_clock_win_series(x, lam), abs=1e-13)
+
+
+@pytest.mark.parametrize("lam", [5.0, 44.0, 100.0, 2500.0, 30000.0])
+def test_curve_matches_pointwise_clock_rule(lam):
+    _, _, curve = w._best_clock(lam)
+    for i in range(0, 1000, 37):
+        assert curve[i] == pytest.approx(w.clock_rule(i / 1000, lam).win, abs=1e-15)
+
+
+def test_psi_grid_matches_high_precision():
+    mp = pytest.importorskip("mpmath")
+    mp.mp.dps = 30
+    for lam in (44.0, 1000.0, 40000.0):
+        n = min(1000, int(51000 / lam) + 1)
+        grid = w._psi_grid(lam, n)
+        for i in range(0, n, max(1, n // 7)):
+            b = mp.mpf(lam) - i * mp.mpf(lam) / 1000
+            ref = mp.e ** (-b) * (mp.ei(b) - mp.euler - mp.log(b))
+            assert grid[i] == pytest.approx(float(ref), rel=1e-14)
 
 
 def test_bruss_one_over_e_law():

@@ -502,14 +502,6 @@ export function mountCompanion(root, { engine = null, getScenario = null, getSol
     );
   }
 
-  if (engine && typeof engine.onStatus === "function") {
-    engine.onStatus((s) => {
-      const was = state.engine.state;
-      state.engine = { state: s.state, detail: s.detail || "" };
-      if (was !== s.state) render();
-    });
-  }
-
   // ---- words ------------------------------------------------------------------------------
 
   function fieldWords(field) {
@@ -967,6 +959,16 @@ export function mountCompanion(root, { engine = null, getScenario = null, getSol
       });
     });
   }
+  // Subscribed only now: onStatus calls back at once when the engine already
+  // has a status, and render() needs the frame built above.
+  if (engine && typeof engine.onStatus === "function") {
+    engine.onStatus((s) => {
+      const was = state.engine.state;
+      state.engine = { state: s.state, detail: s.detail || "" };
+      if (was !== s.state) render();
+    });
+  }
+
   render();
   askAdvice();
   askRule();

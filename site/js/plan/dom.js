@@ -4,8 +4,8 @@
 //   el("p", {class: "note", id: "x"}, "some text", el("strong", {}, "bold"))
 //   svg("rect", {x: 0, width: 37.1, class: "seg-best"})
 //
-// Props: `class`, `text`, `hidden` (boolean), `dataset` (object), `on<event>`
-// (listener); anything else is set with setAttribute (true -> "", and
+// Props: `class`, `text`, `hidden` (boolean), `dataset` (object), `value` and
+// `checked` (set as properties), `on<event>` (listener); anything else is set with setAttribute (true -> "", and
 // null/undefined/false leave it out). Never pass "style": the page's policy
 // refuses style attributes; use classes.
 
@@ -26,6 +26,8 @@ function fill(node, props, children) {
     else if (key === "text") node.textContent = String(value);
     else if (key === "hidden") node.hidden = Boolean(value);
     else if (key === "dataset") Object.assign(node.dataset, value);
+    else if (key === "value") node.value = String(value);
+    else if (key === "checked") node.checked = Boolean(value);
     else if (key.startsWith("on") && typeof value === "function") {
       node.addEventListener(key.slice(2), value);
     } else node.setAttribute(key, value === true ? "" : String(value));

@@ -8,6 +8,7 @@ import { el, replaceChildren, setAttr, setText, svg } from "./dom.js";
 import { formatCount, formatNumber, formatPercent, isNum, plural } from "../format.js";
 import { cutoffContent } from "./cutoffs.js";
 import { curveFigure } from "./curve.js";
+import { rankFigure } from "./rankchart.js";
 import { LIMIT_PERCENT, TOP_ROWS, limitName, outcomeLabels, successPhrase } from "./words.js";
 
 let built = { result: null, uiVersion: -1 };
@@ -112,6 +113,7 @@ function emptyText(state) {
   if (state.engine.state === "failed") {
     return "The solver could not start, so there is no plan to show. Your entries are kept; reload the page to try again.";
   }
+  if (state.share?.opening) return "Opening the shared plan…";
   if (state.engine.state !== "ready") return "The plan appears here as soon as the solver has started.";
   if (Object.keys(state.errors).length || state.generalError) return "Fix the marked entry to see the plan.";
   return "Working out the plan…";
@@ -299,10 +301,12 @@ function buildDetails(details, state, handlers) {
     return;
   }
   const curve = curveFigure(data);
+  const ranks = rankFigure(data);
   replaceChildren(
     details,
     outcomeSection(data),
     topSection(data),
+    ranks ? section("sec-ranks", "Rank of the person hired", ranks) : null,
     section(
       "sec-cutoffs",
       "The rule, stage by stage",
@@ -350,11 +354,15 @@ export function renderResults(state, parts, handlers) {
 
   const flag = summary.querySelector(".summary-flag");
   let flagText = "";
-  if (stale) flagText = "These figures are for the last entries that worked. Fix the marked entry to update them.";
+  // A prerendered answer stays on screen when the solver fails to start: say so.
+  const stranded = Boolean(state.result) && state.engine.state === "failed";
+  if (stranded) {
+    flagText = "The solver could not start, so these figures were worked out in advance and do not follow your changes. Reload the page to try again.";
+  } else if (stale) flagText = "These figures are for the last entries that worked. Fix the marked entry to update them.";
   else if (state.pending && state.result) flagText = "Updating…";
   setText(flag, flagText);
   flag.hidden = flagText === "";
-  flag.classList.toggle("flag-stale", stale);
+  flag.classList.toggle("flag-stale", stale || stranded);
 }
 
 /** Short numbers for a compare row in the form, from the last answer. */
