@@ -9,6 +9,8 @@ distribution, and needs from the distribution only:
 * ``tail_mean(u)`` = psi(u) = E[X; F(X) > u] = integral of F^-1 over (u, 1);
 * ``excess(c)`` = E[(X - c)^+], so ``emax(c)`` = E[max(X, c)] = c + excess(c)
   (Moser's recursion) and ``partial_above(c)`` = E[X; X > c] = psi(F(c));
+* ``upper_parts(c)`` = (1 - F(c), E[X; X > c], E[(X - c)^+]) in one call
+  (one erfc and one exp for the normal, one bisection for a sample);
 * ``kinks``: quantiles where psi is not smooth (empty except for ``sample``).
 
 Three families:

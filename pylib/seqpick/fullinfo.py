@@ -93,9 +93,10 @@ candidates is an analytic function of a real K, and the Euler-Maclaurin
 summation formula in Gregory's form (the integral over K by Gauss-Legendre,
 plus end corrections from differences of exact stage values) gives the sum
 over K >= 24 from about 100 stage evaluations, exact to rounding (see the
-block comment before :func:`_em_points`); the last stages (K < 24, or
-< sqrt(10 w N) for N below about 1,500) and the first one are summed directly,
-and N < 200 is summed directly.  The skip rules have a single stage whose
+block comment before :func:`_em_points`); the last stages (K < 24; for N
+below about 2,000, K below an L >= sqrt(10 w N) chosen from the size of the
+first left-out end correction, about 100 to 190 stages) and the first one are
+summed directly, and N below about 200 (more with small p) stage by stage.  The skip rules have a single stage whose
 kernel falls like (K/(N-1))^y, so it is cut where that is below e^-52.
 The rank:
 the first offer has J ~ (the number of later candidates above it) better
@@ -537,7 +538,7 @@ def _gm_eval(k: int, z: float, rho: list[float], Y: int) -> tuple[float, float]:
 # root w(eps) is analytic near eps = 0 (implicit function theorem: dPhi/dw > 0),
 # with the singularities at |eps| of order 1/w(0) or more.
 
-_W_DEG = 12          # Taylor terms kept: (eps/R)^13 < 1e-18 for k >= _w_kmin
+_W_DEG = 12          # Taylor degree kept: (eps/R)^13 < 1e-18 for k >= kmin
 _W_NODES = 32        # points on the Cauchy circle
 _W_CACHE: dict[float, tuple[list[float], int]] = {}
 
@@ -1066,9 +1067,11 @@ def _em_points(n: int, p: float, k_req: int = 0
     The stage mass falls like exp(-w (n-1-K)/K) towards small K.  If it is below
     exp(-52) at K_cut = w (n-1)/(52 + w) >= max(24, k_req) + 8, the integral
     stops at K_cut and L = max(24, kmin) (no terms at L: everything below K_cut
-    is negligible).  Else L = max(k_req, sqrt(10 w n)), where f changes by
+    is negligible).  Else L >= max(k_req, sqrt(10 w n)), where f changes by
     less than e^0.1 from one K to the next, so Gregory's differences at L fall
-    like 0.11^k.  [L', n-2] is cut into pieces [K/3, K] from the top, each by
+    like 0.11^k or faster; L is raised until the first term left out (g_7 =
+    0.0095 times the 7th difference, about (e^(w n/L^2) - 1)^7 f(L)) is below
+    1e-17.  [L', n-2] is cut into pieces [K/3, K] from the top, each by
     16-point Gauss-Legendre in K: the nearest singularity of f is at K = 0 (f is
     smooth on the scale of K), two half-lengths from the middle of a piece, so
     the error is of order (2 + sqrt 3)^-32 ~ 1e-18 of the piece."""
@@ -1083,10 +1086,15 @@ def _em_points(n: int, p: float, k_req: int = 0
     if k_cut >= max(A, k_req) + 8:
         L, bottom, lower = A, k_cut, False
     else:
+        # smallest L with the first left-out Gregory term, g_7 (e^(w n/L^2) - 1)^7 times
+        # the stage mass exp(-w (n-1-L)/L)/n, below 1e-17
         L = max(A, k_req, int(math.ceil(math.sqrt(10.0 * wh * n))))
-        bottom, lower = float(L), True
-        if B < 3 * L:
+        while L <= B - 16 and 0.0095 * math.expm1(wh * n / (L * L)) ** 7 \
+                * math.exp(-wl * (n - 1.0 - L) / L) / n > 1e-17:
+            L += max(1, L // 16)
+        if L > B - 16:
             return None
+        bottom, lower = float(L), True
     pts: list[tuple[float, float]] = []
     hi = float(B)
     while hi > bottom:
@@ -1877,32 +1885,34 @@ def score_bars(n: int, m: int, p: float, c: float, must: bool,
                 a1[k] = pa if q > 0.0 else 0.0
                 v = -c + v + p * ex
         return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=v, upq=upq, pab=pab)
-    V = [0.0] * (m + 1)           # V[r] = V_{k, r} for the current k (to come)
-    rs = range(m, 0, -1)          # downwards, so that V[r - 1] is still V_{k, r-1}
+    # one chain per r: V_{k+1,r} needs V_{k,r} and V_{k,r-1} only, so the chains
+    # are computed one after the other (r = 1, 2, ..., m), each in one loop
+    prev = [0.0] * (n + 1)        # V_{k, r-1}, k = 0..n
+    cur = prev
     smp = isinstance(dist, Sample)
-    if smp:
-        xs, fs, psik = dist.xs, dist.fs, dist._psi_knots  # type: ignore[attr-defined]
-        nxs = len(xs) - 1
-        x_lo, x_hi = xs[0], xs[-1]
-    else:
-        xs = fs = psik = []
-        nxs = 0
-        x_lo = x_hi = 0.0
-    for k in range(0, n):
-        # stage with k candidates after it; V_{k+1, r} from V_{k, .}, in place
-        for r in rs:
-            if must and k < r:
-                forced[r][k] = 1
-                bars[r][k] = -math.inf
-                upq[r][k] = 1.0
-                pab[r][k] = mean
-                V[r] = -c + p * (mean + V[r - 1]) + (1.0 - p) * V[r]
-            else:
-                D = V[r] - V[r - 1]
-                bars[r][k] = D
-                if smp and x_lo < D < x_hi:
+    nrm = isinstance(dist, Normal)
+    for r in range(1, m + 1):
+        cur = [0.0] * (n + 1)
+        br, fr, qr, ar = bars[r], forced[r], upq[r], pab[r]
+        k0 = min(r, n) if must else 0
+        for k in range(k0):       # every remaining candidate is needed: take anyone
+            fr[k] = 1
+            br[k] = -math.inf
+            qr[k] = 1.0
+            ar[k] = mean
+            cur[k + 1] = -c + p * (mean + prev[k]) + (1.0 - p) * cur[k]
+        v = cur[k0]
+        if smp:
+            xs, fs, psik = dist.xs, dist.fs, dist._psi_knots  # type: ignore[attr-defined]
+            nxs = len(xs) - 1
+            x_lo, x_hi = xs[0], xs[-1]
+            bis = bisect.bisect_right
+            for k in range(k0, n):
+                D = v - prev[k]
+                br[k] = D
+                if x_lo < D < x_hi:
                     # Sample.upper_parts inlined (the same operations)
-                    i = bisect.bisect_right(xs, D, 1, nxs) - 1
+                    i = bis(xs, D, 1, nxs) - 1
                     x0, x1, f0, f1 = xs[i], xs[i + 1], fs[i], fs[i + 1]
                     u = f0 + (D - x0) / (x1 - x0) * (f1 - f0)
                     top = psik[i + 1]
@@ -1913,10 +1923,34 @@ def score_bars(n: int, m: int, p: float, c: float, must: bool,
                         ex = 0.0
                 else:
                     q, pa, ex = up(D)
-                upq[r][k] = q
-                pab[r][k] = pa if q > 0.0 else 0.0
-                V[r] = -c + V[r] + p * ex
-    return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=V[m], upq=upq, pab=pab)
+                qr[k] = q
+                ar[k] = pa if q > 0.0 else 0.0
+                v = -c + v + p * ex
+                cur[k + 1] = v
+        elif nrm:
+            mu, sd = dist.mu, dist.sd  # type: ignore[attr-defined]
+            erfc, exp = math.erfc, math.exp
+            for k in range(k0, n):
+                D = v - prev[k]
+                br[k] = D
+                z = (D - mu) / sd
+                q = 0.5 * erfc(z / _SQRT2)
+                ph = _INV_SQRT2PI * exp(-0.5 * z * z)
+                qr[k] = q
+                ar[k] = mu * q + sd * ph if q > 0.0 else 0.0
+                v = -c + v + p * (sd * (ph - z * q) if z < 5.0 else dist.excess(D))
+                cur[k + 1] = v
+        else:
+            for k in range(k0, n):
+                D = v - prev[k]
+                br[k] = D
+                q, pa, ex = up(D)
+                qr[k] = q
+                ar[k] = pa if q > 0.0 else 0.0
+                v = -c + v + p * ex
+                cur[k + 1] = v
+        prev = cur
+    return _ScorePlan(n=n, m=m, bars=bars, forced=forced, value=cur[n], upq=upq, pab=pab)
 
 
 def _score_values_at(n: int, m: int, p: float, c: float, must: bool,

@@ -77,7 +77,7 @@ from bisect import bisect_left
 from dataclasses import dataclass
 from itertools import accumulate, compress, islice, repeat
 from operator import mul, ne, sub, truediv
-from typing import Any
+from typing import Any, Sequence
 
 from .advise import Advice, SearchState
 from .errors import ScenarioError
@@ -91,7 +91,7 @@ CURVE_FULL_MAX = 2000
 CURVE_POINTS = 1000
 
 
-def _suffix_products(p: list[float], omp_rev: list[float] | None = None) -> list[float]:
+def _suffix_products(p: Sequence[float], omp_rev: list[float] | None = None) -> list[float]:
     """[unused, Z_1, ..., Z_N, Z_{N+1} = 1] with Z_k = prod_{j=k}^{N} (1 - p_j),
     each factor applied in the order of the recursion Z_k = (1 - p_k) Z_{k+1}
     (``omp_rev``: the factors 1 - p_k for k = N..1, if known).  O(N)."""
@@ -113,7 +113,7 @@ class _Prepared:
     odds_total: float         # sum of all odds from the end (inf if m); relative error < N ulp
 
 
-def _prepare(p: list[float]) -> _Prepared:
+def _prepare(p: Sequence[float]) -> _Prepared:
     """One pass for 1 - p_k from the end, then Z, m, the odds sums.  O(N), C-level."""
     n = len(p)
     omp_rev = list(map(sub, repeat(1.0), reversed(p)))
@@ -126,7 +126,7 @@ def _prepare(p: list[float]) -> _Prepared:
     return _Prepared(z, m, cum, math.inf if m else cum[-1])
 
 
-def _last_certain(p: list[float]) -> int:
+def _last_certain(p: Sequence[float]) -> int:
     """The last stage (1-based) with p_k = 1 (chances are validated to [0, 1]),
     or 0 if none.  O(N), C-level."""
     if not p or max(p) < 1.0:
@@ -134,7 +134,7 @@ def _last_certain(p: list[float]) -> int:
     return len(p) - p[::-1].index(1.0)
 
 
-def _odds_from_end(p: list[float], m: int) -> list[float]:
+def _odds_from_end(p: Sequence[float], m: int) -> list[float]:
     """R[i] = sum of the odds r_k over the last i stages (k > N - i), for the
     stages after m (all p_k < 1 there), summed from the end like the loop
     ``total += r_k``.  O(N - m)."""
@@ -143,7 +143,7 @@ def _odds_from_end(p: list[float], m: int) -> list[float]:
     return list(accumulate(reversed(list(odds)), initial=0.0))
 
 
-def odds_start(p: list[float], m: int | None = None,
+def odds_start(p: Sequence[float], m: int | None = None,
                cum: list[float] | None = None) -> tuple[int, float]:
     """Bruss's index s (1-based) and the odds sum from s on (inf if some p_k = 1
     with k >= s).  Sum the odds r_k = p_k/(1-p_k) from the end until >= 1
@@ -171,13 +171,13 @@ class SuffixTables:
     w: list[float]
 
 
-def suffix_tables(p: list[float], q: float = 1.0) -> SuffixTables:
+def suffix_tables(p: Sequence[float], q: float = 1.0) -> SuffixTables:
     """O(N) backward recursions (module docstring)."""
     z = _suffix_products(p)
     return SuffixTables(z, _w_table(p, q, z))
 
 
-def _w_table(p: list[float], q: float, z: list[float]) -> list[float]:
+def _w_table(p: Sequence[float], q: float, z: list[float]) -> list[float]:
     """W_k = p_k q Z_{k+1} + (1 - p_k q) W_{k+1}, k = N..1 (index 0 unused).  O(N)."""
     n = len(p)
     w = [0.0] * (n + 2)
@@ -189,7 +189,7 @@ def _w_table(p: list[float], q: float, z: list[float]) -> list[float]:
     return w
 
 
-def _start_wins(p: list[float], starts: list[int], z: list[float], m: int,
+def _start_wins(p: Sequence[float], starts: list[int], z: list[float], m: int,
                 cum: list[float]) -> list[float]:
     """P(exactly one event in s..N) for each s in ``starts`` (the win chance of
     "offer at the first event from stage s on", accepted for sure), in [0, 1]:
@@ -212,7 +212,7 @@ def _start_wins(p: list[float], starts: list[int], z: list[float], m: int,
     return out
 
 
-def optimal_set(p: list[float], q: float, c: float, must: bool,
+def optimal_set(p: Sequence[float], q: float, c: float, must: bool,
                 z: list[float], values: bool = True) -> tuple[list[int], list[float]]:
     """Backward induction over stages: (offer-at-event flags per stage, V_1..V_{N+1};
     the second list is empty if not ``values``).  O(N)."""
@@ -238,7 +238,7 @@ def optimal_set(p: list[float], q: float, c: float, must: bool,
     return flags, v
 
 
-def _backward(p: list[float], q: float, c: float, must: bool,
+def _backward(p: Sequence[float], q: float, c: float, must: bool,
               z: list[float]) -> tuple[list[int], list[float]]:
     """:func:`optimal_set`'s flags and, in the same loop, :func:`_w_table`'s W
     (the curve: "offer from stage k on" with acceptance q).  O(N)."""
@@ -274,7 +274,7 @@ class OddsValue:
     interviews: float
 
 
-def _evaluate_from(p: list[float], start: int, q: float, must: bool,
+def _evaluate_from(p: Sequence[float], start: int, q: float, must: bool,
                    z: list[float]) -> OddsValue:
     """Exact performance of "offer at the first event from stage ``start`` on"
     (and at stage N whatever happens when ``must``): with a_k = P(no hire before
@@ -304,7 +304,7 @@ def _evaluate_from(p: list[float], start: int, q: float, must: bool,
                      (start - 1) + (math.fsum(alive) - alive[-1]))
 
 
-def _seen_from(p: list[float], start: int) -> float:
+def _seen_from(p: Sequence[float], start: int) -> float:
     """Expected stages seen under "offer at the first event from stage ``start``
     on" (offers accepted): start - 1 + sum_{k>=start} prod_{j=start}^{k-1} (1 - p_j).  O(N)."""
     n = len(p)
@@ -314,7 +314,7 @@ def _seen_from(p: list[float], start: int) -> float:
                                               mul, initial=1.0))
 
 
-def evaluate(p: list[float], flags: list[int], q: float, must: bool,
+def evaluate(p: Sequence[float], flags: list[int], q: float, must: bool,
              z: list[float]) -> OddsValue:
     """Exact performance of "offer at an event at the flagged stages" (and at
     stage N whatever happens when ``must``).  O(N); flags of the form 0..0 1..1
@@ -361,7 +361,7 @@ def _groups(flags: list[int]) -> list[StageGroup]:
     return [StageGroup(a, b, flags[a - 1]) for a, b in zip(starts, ends)]
 
 
-def _check_supported(s: Scenario) -> list[float]:
+def _check_supported(s: Scenario) -> Sequence[float]:
     pool = s.pool
     assert isinstance(pool, ChancesPool)
     if s.goal.type != "best":
@@ -370,16 +370,21 @@ def _check_supported(s: Scenario) -> list[float]:
     if s.openings != 1:
         raise ScenarioError("openings", f"got {s.openings}; with chances per stage only one "
                             "opening is supported")
-    return list(pool.chances)
+    return pool.chances        # validated, read-only: no copy needed
 
 
-def _stage_words(flags: list[int], must: bool) -> tuple[str, int | None]:
+def _stage_words(flags: list[int], must: bool,
+                 first: int | None = None) -> tuple[str, int | None]:
+    """The rule in words and its skip (None unless "from stage s on"); ``first``:
+    the first flagged stage when the flags are known to be 0..0 1..1."""
     n = len(flags)
-    first = _first_flag(flags)
+    monotone = first is not None
+    if first is None:
+        first = _first_flag(flags)
     tail = " If no event comes by then, take the last stage anyway." if must else ""
     if first > n:
         return "Never make an offer: no stage is worth it." + tail, None
-    if all(flags[first - 1:]):
+    if monotone or all(flags[first - 1:]):
         if first == 1:
             return "Make an offer at the first event (the first stage where it happens)." \
                 + tail, 0
@@ -405,7 +410,7 @@ def _result(name: str, description: str, rule: dict[str, Any], v: OddsValue,
         expected_cost=c * v.interviews)
 
 
-def _compare(p: list[float], rule: CompareRule, i: int, q: float, c: float, must: bool,
+def _compare(p: Sequence[float], rule: CompareRule, i: int, q: float, c: float, must: bool,
              z: list[float]) -> RuleResult:
     n = len(p)
     if rule.kind == "skip":
@@ -434,7 +439,7 @@ def _curve_starts(n: int, s_opt: int) -> tuple[list[int], bool]:
     return sorted(pts), False
 
 
-def _curve(p: list[float], q: float, s_opt: int, z: list[float], m: int,
+def _curve(p: Sequence[float], q: float, s_opt: int, z: list[float], m: int,
            cum: list[float], w: list[float] | None = None) -> Curve:
     """Win chance of "offer at the first event from stage s' on" for every s'
     (N <= 2000; else about 1000 values including the optimum); ``w``: the
@@ -471,6 +476,7 @@ def solve_odds(s: Scenario) -> SolveResult:
         value = OddsValue(win, max(0.0, 1.0 - win - rest), 0.0 if must else rest,
                           rest if must else 0.0, _seen_from(p, s_idx))
         groups = ([StageGroup(1, s_idx - 1, 0)] if s_idx > 1 else []) + [StageGroup(s_idx, n, 1)]
+        words, skip = _stage_words(flags, must, s_idx)
     else:
         flags, w_q = _backward(p, q, c, must, z)
         method = ("backward induction over stages (independent events; declines count as "
@@ -482,10 +488,11 @@ def solve_odds(s: Scenario) -> SolveResult:
             value = _evaluate_from(p, first, q, must, z)
             groups = (([StageGroup(1, first - 1, 0)] if first > 1 else [])
                       + ([StageGroup(first, n, 1)] if first <= n else []))
+            words, skip = _stage_words(flags, must, first)
         else:
             value = evaluate(p, flags, q, must, z)
             groups = _groups(flags)
-    words, skip = _stage_words(flags, must)
+            words, skip = _stage_words(flags, must)
     policy = Policy(thresholds=flags, groups=groups, words=words, skip=skip,
                     interval=skip is not None)
     opt = _result("optimal", words, {"optimal": True}, value, c)

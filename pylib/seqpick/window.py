@@ -60,19 +60,22 @@ exact (derived here):
   mu s_{n+1} = 1 - n s_n,  y_{n+1} = y_n - (1 - n s_n)/n,  mu z_{n+1} = y_{n+1} - n z_n;
 * time (fixed n; M + D ~ Poisson(mu + delta) for D ~ Poisson(delta)):
   s_n(mu + delta) = sum_d pi_d s_{n+d},  z_n(mu + delta) = sum_d pi_d (z_{n+d} + h_d s_{n+d}),
-  y_n(mu + delta) = sum_d pi_d (y_{n+d} + h_d),  pi_d = Poisson(d; delta), h_d = H_{n+d-1} - H_{n-1}.
+  y_n(mu + delta) = sum_d pi_d (y_{n+d} + h_d),
+  with pi_d = Poisson(d; delta) and h_d = H_{n+d-1} - H_{n-1}.
 
 Thresholds by a chain of moves: from the triple at (k, x_k), count moves give
 it at (k+1 .. k+24, x_k), and x_{k+1} = x_k + delta solves g(k+1, x_k + delta) = 0 by
 Newton's method on the time move, which also gives the triple at
 (k+1, x_{k+1}).  delta is about e - 1 < 1.75, so 23 Poisson terms leave out
-less than 3e-18 of each sum.  An error in a carried triple is multiplied by
-at most e^-delta (mu/(mu - delta))^(n+1) < 3.2 through the count move and the
-Poisson weights together, and the time move is an average, so errors do not
-grow along the chain.  The arrival numbers come in segments of 128, each
-started by one direct Poisson sum (tails below 1e-18) and a Newton solve from
-a point checked to lie below the root; a segment is computed as far as needed
-and later extended with the same data, so x_k depends on k only.  Every root
+less than 3e-18 of each sum.  An error in s or z of a carried triple is
+multiplied by at most e^-delta (mu/(mu - delta))^n < 0.81 through the count
+move and the Poisson weights together (negative binomial series), one in y by
+1, so errors do not grow along a chain; they add up like a random walk over
+its at most 384 steps.  The arrival numbers come in segments of 128 (of 384
+from k = 16384 on), each started by one direct Poisson sum (tails below
+1e-18) and a Newton solve from a point checked to lie below the root; a
+segment is computed as far as needed and later extended with the same data,
+so x_k depends on k only.  Every root
 is accepted when its Newton step is below 2e-15 x_k; the values agree with
 brentq on an independent scipy sum and with direct root finding to about
 1e-15 relative (tests).
@@ -99,10 +102,14 @@ from the triple at (k+1, x_{k+1}) by one count step back; in the integral,
 mu = x_k + t and V_k(x_k + t) = sum_d Pois(d; t) F_d (time move), so it equals
 sum_d J_d F_d with c = k-1-k0, alpha = mu0 - x_k, delta = X_{k+1} - x_k and
 
-    J_d = int_0^delta Pois(c; alpha - t) Pois(d; t) dt = Pois(c+d+1; alpha) P(Bin(c+d+1, delta/alpha) >= d+1),
+    J_d = int_0^delta Pois(c; alpha - t) Pois(d; t) dt
+        = Pois(c+d+1; alpha) P(Bin(c+d+1, delta/alpha) >= d+1),
 
-computed by the recurrence alpha J_{d-1} = (c+1+d) J_d + (c+1) Pois(c+1; alpha - delta) Pois(d; delta)
-(integration by parts) run downwards, which adds positive terms only; it is
+computed by the recurrence (integration by parts)
+
+    alpha J_{d-1} = (c+1+d) J_d + (c+1) Pois(c+1; alpha - delta) Pois(d; delta)
+
+run downwards, which adds positive terms only; it is
 used when (c + 1 + d)/alpha <= 1.2, so that a start error grows by at most 1.2
 per step; otherwise the binomial form (its tail summed from the end, all
 terms positive).  Only activation counts whose chance can matter are summed:
@@ -117,9 +124,10 @@ below 2e-17, left-out Poisson terms below 1e-20 per count (at most ~1300
 counts), direct-sum tails below 2e-18; the rest is rounding: the triples
 carry a relative error of about 1e-15, each per-count sum has at most 25
 positive terms, so the total is below 1e-14.  Measured: within 1e-15 of a
-40-digit evaluation of the same sums, and of the summation over the count n
-used before (tests also check against an independent order-statistics
-formula, the continuous-time DP and simulation).
+40-digit evaluation of the same sums; the win chance within 1e-15 of the
+summation over the total count n used before (whose hire chance was off by
+up to 3e-14).  The tests check against an independent order-statistics
+formula (1e-12), the continuous-time DP and simulation.
 
 Clock-only rules
 ----------------
@@ -132,7 +140,8 @@ integrates in closed form, E[L_{M-1}(q)] = Ein(Lambda) - Ein(x Lambda)
 
     P(win) = x (Ein(Lambda) - Ein(x Lambda)) + (1 - x) e^{-x Lambda} psi((1-x) Lambda),
     P(no hire) = x + (1 - x) e^{-Lambda},
-    E[interviews] = x Lambda (1 + Ein(Lambda) - Ein(x Lambda)) + e^{-x Lambda} (1 - e^{-(1-x) Lambda}),
+    E[interviews] = x Lambda (1 + Ein(Lambda) - Ein(x Lambda))
+                    + e^{-x Lambda} (1 - e^{-(1-x) Lambda}),
 
 with Ein(z) = int_0^z (1-e^-s)/s ds = gamma + ln z + E1(z).  The first tends to
 -x ln x as Lambda grows; the psi term is left out when below 1e-22.
@@ -145,10 +154,12 @@ psi(b + h) = e^-h psi(b) + sum_{d>=1} Pois(d; h) E[1/(d + M)], M ~ Poisson(b).
 
 Complexity: per arrival number O(1) (a count move of 23 steps and usually
 one time move of 23 terms), plus one direct sum of about 18 sqrt(x_k) terms
-per segment of 128 arrival numbers; a solve covers the band, about
-4 sqrt(L T) arrival numbers (all of 1 .. 0.58 L T for the time table when
-L T <= 3000), so it is O(sqrt(L T)) moves plus O(L T / 30) direct terms, and
-the curve O(1) per point plus O(sqrt(L T)).  Memory O(band).  Advice from a
+per segment (128 arrival numbers, 384 from k = 16384 on); a solve covers the
+band, about 4 sqrt(L T) arrival numbers (all of 1 .. 0.58 L T for the time
+table when L T <= 3000), so it is O(sqrt(L T)) moves plus at most about
+L T / 2 direct terms (O(L T), but C-level sums: about a third of a solve at
+L T = 9e4 with an empty cache), and the curve O(1) per point plus
+O(sqrt(L T)).  Memory O(band).  Advice from a
 state: the same sums, O(sqrt(mu0)).  Measured times:
 build_scripts/bench_window_odds.py.
 
@@ -452,10 +463,14 @@ def _forward_uv(n: int, mu: float, s: float, z: float, y: float,
 
     mu s_{j+1} = 1 - j s_j,  y_{j+1} = y_j - (1 - j s_j)/j,
     mu z_{j+1} = y_{j+1} - j z_j  (Poisson identity E[M f(M)] = mu E[f(M+1)]).
-    An error in the start values is multiplied by at most prod (j/mu) over the
-    steps; the time move weighs the value at n + d by Poisson(delta) at d, and
-    sum_d Poisson(d; delta) prod_{j<n+d} (j/mu) <= e^-delta (mu/(mu-delta))^(n+1),
-    below 3.2 for every move made here (mu = x_n, delta <= x_{n+1} - x_n).  O(steps).
+    An error in the start values reaches n + d multiplied by prod_{j=n}^{n+d-1} (j/mu)
+    (large where n + d > mu), but the time move weighs the value at n + d by
+    Poisson(d; delta), and sum_d Poisson(d; delta) prod_{j=n}^{n+d-1} (j/mu)
+    = e^-delta (mu/(mu-delta))^n (negative binomial series), below 0.81 for every
+    chain and value move made here (mu = x_n, delta = x_{n+1} - x_n) and below 0.92
+    at the segment starts (checked for n < 3000 and 30000 <= n < 34000; it tends to
+    e^(2-e) = 0.49 for large n).  That is for s and z; an error in y is carried
+    with weight 1 (y_{j+1} - y_j depends on s only).  O(steps).
     """
     ss = [s]
     us = [z]
@@ -483,8 +498,7 @@ def _pd(delta: float, count: int) -> list[float]:
 
 
 def _root_move(k: int, mu: float, s: float, z: float, y: float, off: int, delta: float,
-               slope: float | None = None
-               ) -> tuple[float, float, float, float, float, float] | None:
+               slope: float | None = None) -> tuple | None:
     """x_b and the triple at (b, x_b) for b = k + off (off 0 or 1), from the
     triple at (k, mu) with mu < x_b, by Newton's method on the time move
     delta = x_b - mu starting from the guess ``delta``.
@@ -500,9 +514,11 @@ def _root_move(k: int, mu: float, s: float, z: float, y: float, off: int, delta:
     previous root's, for b >= 64, where consecutive slopes differ by a few per
     cent) saves the derivative when the guess is accepted at once: then the
     accepted |g / slope| is at most half the tolerance; otherwise the exact
-    slope is used.  Returns (x_b, s, z, y, Newton step, slope), or None if the
-    iteration leaves 0 < delta <= 2 (the caller then falls back to direct root
-    finding).  O(1) time moves of _D terms each.
+    slope is used.  Returns (x_b, s, z, y, Newton step, slope, S, U, V, pi)
+    (the last four, the base-b lists at mu and the final Poisson(delta)
+    weights, are reused by :func:`_value_terms`), or None if the iteration
+    leaves 0 < delta <= 2 (the caller then falls back to direct root finding).
+    O(1) time moves of _D terms each.
     """
     if off:
         r = 1.0 - k * s
@@ -597,11 +613,30 @@ def _solve_xstar() -> float:
 #: (the sign change used in the monotonicity proof of the module docstring).
 XSTAR = _solve_xstar()
 
-#: Arrival numbers per chain segment (each starts from a direct sum).
+#: Arrival numbers per chain segment (each starts from a direct sum of about
+#: 18 sqrt(x_k) terms): 128 below _SEG_SWITCH, then 384 (the best length grows
+#: like sqrt(k): a longer segment costs fewer starts, a shorter one less waste).
 _SEG = 128
+_SEG_SWITCH = 16384
+_SEG_LONG = 384
+
+
+def _seg_of(k: int) -> int:
+    """The segment holding arrival number k."""
+    if k < _SEG_SWITCH:
+        return k // _SEG
+    return _SEG_SWITCH // _SEG + (k - _SEG_SWITCH) // _SEG_LONG
+
+
+def _seg_range(j: int) -> tuple[int, int]:
+    """First and last arrival number of segment j."""
+    if j < _SEG_SWITCH // _SEG:
+        return max(1, j * _SEG), (j + 1) * _SEG - 1
+    a = _SEG_SWITCH + (j - _SEG_SWITCH // _SEG) * _SEG_LONG
+    return a, a + _SEG_LONG - 1
 #: k -> (x_k, s_k, z_k, y_k): the threshold and the triple at (k, x_k).
 _STATES: dict[int, tuple[float, float, float, float]] = {}
-_STATES_MAX = 400_000
+_STATES_MAX = 60_000              # about 15 MB; a solve needs at most a few thousand
 
 
 def _segment_start(a: int) -> tuple[float, float, float, float, float]:
@@ -625,7 +660,7 @@ _CHAINS: dict[int, tuple[int, list[float], float | None]] = {}
 def _segment(j: int, upto: int, visit=None) -> None:
     """Extend segment j of _STATES through k = upto (at most its last k).
 
-    Segment j covers k in [max(1, j*_SEG), (j+1)*_SEG): a chain of root moves
+    Segment j covers :func:`_seg_range` (j): a chain of root moves
     from the segment start, each guessed by extrapolating the last
     Newton-refined differences (quadratic in the differences below k = 1024,
     guess error O(k^-6); linear above, error O(k^-4), which amplifies the
@@ -635,8 +670,8 @@ def _segment(j: int, upto: int, visit=None) -> None:
     ``visit(k, step_result)`` is called after each root move from k (for the
     value sums of :func:`rule_value`, which reuse its lists).
     """
-    a = max(1, j * _SEG)
-    upto = min(upto, (j + 1) * _SEG - 1)
+    a, last = _seg_range(j)
+    upto = min(upto, last)
     chain = _CHAINS.get(j)
     if chain is None or a not in _STATES:
         x, s, z, y, step = _segment_start(a)
@@ -675,11 +710,11 @@ def _ensure(k1: int, k2: int, visit=None) -> None:
     """Make sure _STATES holds every k in [k1, k2] (k1 >= 1); the caches are
     emptied first if they would grow beyond _STATES_MAX entries.  ``visit``:
     see :func:`_segment`."""
-    if len(_STATES) + (k2 - k1 + 2 * _SEG) > _STATES_MAX:
+    if len(_STATES) + (k2 - k1 + 2 * _SEG_LONG) > _STATES_MAX:
         _STATES.clear()
         _CHAINS.clear()
-    for j in range(k1 // _SEG, k2 // _SEG + 1):
-        if min(k2, (j + 1) * _SEG - 1) not in _STATES:
+    for j in range(_seg_of(k1), _seg_of(k2) + 1):
+        if min(k2, _seg_range(j)[1]) not in _STATES:
             _segment(j, k2, visit)
 
 
@@ -702,7 +737,8 @@ def threshold(k: int) -> float:
     """x_k: offer to the k-th arrival, if best so far, iff mu = L (T - t) <= x_k.
 
     The root of g(k, mu) = 0 (module docstring); x_k depends on k only.  The
-    values come in segments of 128 arrival numbers: the first root from one
+    values come in segments of 128 arrival numbers (384 from k = 16384 on): the
+    first root from one
     direct sum, each next one x_{k+1} = x_k + delta by Newton's method on exact
     time moves of the triple at (k, x_k) (no interpolation).  Every root is
     accepted when the Newton step is below 2e-15 x_k; with the rounding of the
@@ -1402,8 +1438,9 @@ def solve_window(s: Scenario) -> SolveResult:
         scenario=s.to_dict(), goal="best", policy=policy, optimal=opt, compare=compare,
         curve=curve, limits=limits, notes=notes,
         method="Poisson arrivals over a window: monotone-case thresholds x_k per arrival "
-               "number (Cowan & Zabczyk 1978; Bruss 1987), exact value by summation by parts "
-               "over the Poisson count, O(L*T)")
+               "number (Cowan & Zabczyk 1978; Bruss 1987) by exact moves of Poisson "
+               "expectations, exact value summed over the count at which the rule becomes "
+               "active, O(sqrt(L*T)) moves")
 
 
 def _ordinal(k: int) -> str:
@@ -1417,9 +1454,10 @@ def advise_window(s: Scenario, state: SearchState) -> Advice:
     From the newest entry's time t, its relative rank and the number seen k:
     ``offer_value`` = S_k(mu), mu = L (T - t) (chance it stays best),
     ``pass_value`` = exact chance of winning by passing and continuing
-    optimally from (t, k).  The decision follows the optimal rule
-    (best so far and mu <= x_k), which is the same as offer_value >=
-    pass_value (monotone case).  O(mu).
+    optimally from (t, k) (:func:`rule_value`, activation sums).  The decision
+    follows the optimal rule (best so far and mu <= x_k), which is the same as
+    offer_value >= pass_value (monotone case).  O(sqrt(mu)) moves plus about
+    mu / 2 direct terms (the segment starts of the thresholds in the band, cached).
     """
     pool = _check_supported(s)
     k = state.stage

@@ -184,3 +184,26 @@ def test_sample_near_ties_are_ties():
     d = Sample([5.0, 5.0 + 1e-8, 6.0])
     assert d.distinct == 2
     assert d.fs == pytest.approx([0.0, 1.0 / 3.0, 5.0 / 6.0, 1.0], abs=1e-15)
+
+
+@pytest.mark.parametrize("d", [Uniform(2.0, 7.0), Normal(70.0, 10.0),
+                               Sample([61, 72, 55, 90, 83, 77, 64, 70, 58, 81, 66, 74])])
+def test_upper_parts_agree_with_the_separate_methods(d):
+    lo, hi = d.support
+    lo, hi = (max(lo, 0.0), min(hi, 140.0))
+    for c in np.linspace(lo - 3.0, hi + 3.0, 157):
+        q, pab, ex = d.upper_parts(float(c))
+        assert q == pytest.approx(1.0 - d.cdf(float(c)), abs=1e-15)
+        assert ex == pytest.approx(d.excess(float(c)), rel=1e-13, abs=1e-13)
+        if isinstance(d, Normal):
+            # E[X; X > c] = mean Q(z) + sd phi(z) by scipy (the separate method goes
+            # through the inverse CDF), and by quad at a few points
+            z = (float(c) - 70.0) / 10.0
+            want = 70.0 * special.ndtr(-z) + 10.0 * stats.norm.pdf(z)
+            assert pab == pytest.approx(want, rel=1e-13, abs=1e-13)
+            if int(c) % 17 == 0:
+                want = integrate.quad(lambda x: x * stats.norm.pdf(x, 70, 10), float(c),
+                                      np.inf, epsabs=1e-12)[0]
+                assert pab == pytest.approx(want, rel=1e-10, abs=1e-10)
+        else:
+            assert pab == pytest.approx(d.partial_above(float(c)), rel=1e-13, abs=1e-13)

@@ -113,6 +113,9 @@ def test_thresholds_increase_with_k_and_grow_like_e_minus_1():
     assert 0.40 < excess[0] < 0.41                          # x_1 = 2.1198...
     assert all(0.085 < e < 0.41 for e in excess)
     assert abs(w.threshold(5000) - (E - 1.0) * 5000 - 0.089) < 2e-3
+    # rule_value relies on x_k < (e-1) k + 0.5 over the whole range of arrival numbers
+    for k in (1000, 10_000, 16_383, 16_384, 33_333, 60_000, 93_000):
+        assert 0.085 < w.threshold(k) - (E - 1.0) * k < 0.41
 
 
 def _order_statistics_value(k0: int, mu0: float):
@@ -161,6 +164,19 @@ def test_rule_value_matches_order_statistics(k0, mu0):
     assert rv.win == pytest.approx(win, abs=1e-12)
     assert rv.hire == pytest.approx(hire, abs=1e-12)
     assert rv.interviews == pytest.approx(seen, rel=1e-12)
+
+
+@pytest.mark.parametrize("k0,mu0", [(0, 2500.0), (0, 20000.0), (700, 3000.0)])
+def test_value_sums_from_fresh_chains_match_cached_states(k0, mu0):
+    # a cold call takes the value sums from the chain steps that make the thresholds;
+    # a warm call redoes the count moves from the cached triples
+    w._clear_caches()
+    cold = w.rule_value(k0, mu0)
+    warm = w.rule_value(k0, mu0)
+    assert cold.band == warm.band
+    assert cold.win == pytest.approx(warm.win, abs=2e-15)
+    assert cold.hire == pytest.approx(warm.hire, abs=1e-14)
+    assert cold.interviews == pytest.approx(warm.interviews, rel=1e-14)
 
 
 def test_stay_best_chance_matches_hypergeometric_function():
