@@ -54,10 +54,14 @@ _HALF_LOG_2PI = 0.5 * math.log(2.0 * math.pi)
 _TINY = sys.float_info.min          # smallest normal float, about 2.2e-308
 
 
+_STIRLERR_SMALL = [math.lgamma(n + 1.0) - (n + 0.5) * math.log(n) + n - _HALF_LOG_2PI
+                   if n > 0 else 0.0 for n in range(16)]
+
+
 def _stirlerr(n: int) -> float:
     """log(n!) - (n + 1/2) log n + n - log(sqrt(2 pi)), n >= 1 (Loader 2000)."""
     if n <= 15:
-        return math.lgamma(n + 1.0) - (n + 0.5) * math.log(n) + n - _HALF_LOG_2PI
+        return _STIRLERR_SMALL[n]
     x = 1.0 / n
     x2 = x * x
     return x * (1.0 / 12 - x2 * (1.0 / 360 - x2 * (1.0 / 1260 - x2 * (1.0 / 1680

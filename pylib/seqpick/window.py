@@ -206,6 +206,7 @@ from typing import Any
 from .advise import Advice, SearchState
 from .errors import ScenarioError
 from .harmonic import tail
+from .prior import _bd0, _stirlerr  # Loader (2000) saddle-point pieces, shared
 from .results import (Curve, Limit, Outcome, Policy, RuleResult, SolveResult)
 from .scenario import CompareRule, Scenario, WindowPool
 
@@ -224,38 +225,6 @@ _MONTHS = ("January", "February", "March", "April", "May", "June", "July", "Augu
            "September", "October", "November", "December")
 
 EULER_GAMMA = 0.57721566490153286060651209008240243
-_LN_SQRT_2PI = 0.5 * math.log(2.0 * math.pi)
-_SMALL = [math.lgamma(n + 1.0) - (n + 0.5) * math.log(n) + n - _LN_SQRT_2PI
-          if n > 0 else 0.0 for n in range(16)]
-
-
-def _stirlerr(n: int) -> float:
-    """log(n!) - [(n + 1/2) log n - n + log sqrt(2 pi)] for integer n >= 1."""
-    if n < 16:
-        return _SMALL[n]
-    x = 1.0 / n
-    x2 = x * x
-    return x * (1.0 / 12 - x2 * (1.0 / 360 - x2 * (1.0 / 1260 - x2 * (
-        1.0 / 1680 - x2 * (1.0 / 1188)))))
-
-
-def _bd0(x: float, m: float) -> float:
-    """x log(x/m) + m - x, accurate also when x is close to m (Loader 2000)."""
-    if abs(x - m) < 0.1 * (x + m):
-        v = (x - m) / (x + m)
-        s = (x - m) * v
-        ej = 2.0 * x * v
-        v2 = v * v
-        for j in range(1, 1000):
-            ej *= v2
-            s1 = s + ej / (2 * j + 1)
-            if s1 == s:
-                return s1
-            s = s1
-        return s
-    return x * math.log(x / m) + m - x
-
-
 def dpois(x: int, mu: float) -> float:
     """P(M = x) for M ~ Poisson(mu), full relative precision.  O(1)."""
     if mu <= 0.0:
