@@ -60,6 +60,8 @@ from common import (  # noqa: E402
     sha256_hex,
     verify_integrity,
 )
+from precompile import PrecompileError, precompiled_package, precompiled_stdlib  # noqa: E402
+from preload import PreloadError, inject_modulepreload  # noqa: E402
 
 # --- pinned inputs -----------------------------------------------------------
 
@@ -284,22 +286,9 @@ def _metadata(project: dict) -> str:
     return "\n".join(lines) + "\n"
 
 
-def build_wheel(root: Path = ROOT, pylib: Path = PYLIB) -> tuple[str, bytes]:
-    """Build the project's pure-Python wheel in memory: (file name, bytes).
-
-    Same sources give the same bytes (sorted entries, fixed timestamps), so
-    its sha256 is a content hash. Every package under pylib/ (a folder with
-    __init__.py) goes in, with all its files except caches."""
-    pyproject = tomllib.loads((root / "pyproject.toml").read_text())
-    project = pyproject["project"]
-    for key in ("name", "version"):
-        if key not in project:
-            raise BuildError(f"pyproject.toml [project] has no static {key!r}")
-    dist_name = re.sub(r"[-_.]+", "_", project["name"]).lower()
-    version = project["version"]
-    wheel_name = f"{dist_name}-{version}-py3-none-any.whl"
-    dist_info = f"{dist_name}-{version}.dist-info"
-
+def package_files(pylib: Path = PYLIB) -> list[tuple[str, bytes]]:
+    """Every file of every package under pylib/ (a folder with __init__.py),
+    except caches and hidden files: [(path relative to pylib, bytes)], sorted."""
     entries: list[tuple[str, bytes]] = []
     packages = sorted(p.parent for p in pylib.glob("*/__init__.py"))
     if not packages:
@@ -312,6 +301,30 @@ def build_wheel(root: Path = ROOT, pylib: Path = PYLIB) -> tuple[str, bytes]:
             if any(part.startswith(".") for part in rel.parts):
                 continue
             entries.append((rel.as_posix(), path.read_bytes()))
+    return entries
+
+
+def build_wheel(root: Path = ROOT, pylib: Path = PYLIB,
+                extra: Iterable[tuple[str, bytes]] = ()) -> tuple[str, bytes]:
+    """Build the project's pure-Python wheel in memory: (file name, bytes).
+
+    Same sources give the same bytes (sorted entries, fixed timestamps), so
+    its sha256 is a content hash. Every package under pylib/ goes in
+    (package_files), then *extra* (the bytecode for Pyodide, see
+    precompile.py), then the .dist-info files."""
+    pyproject = tomllib.loads((root / "pyproject.toml").read_text())
+    project = pyproject["project"]
+    for key in ("name", "version"):
+        if key not in project:
+            raise BuildError(f"pyproject.toml [project] has no static {key!r}")
+    dist_name = re.sub(r"[-_.]+", "_", project["name"]).lower()
+    version = project["version"]
+    wheel_name = f"{dist_name}-{version}-py3-none-any.whl"
+    dist_info = f"{dist_name}-{version}.dist-info"
+
+    entries = package_files(pylib)
+    packages = sorted({name.split("/", 1)[0] for name, _ in entries})
+    entries += sorted(extra)
 
     entries.append((f"{dist_info}/METADATA", _metadata(project).encode()))
     entries.append((
@@ -322,7 +335,7 @@ def build_wheel(root: Path = ROOT, pylib: Path = PYLIB) -> tuple[str, bytes]:
     if scripts:
         text = "[console_scripts]\n" + "".join(f"{k} = {v}\n" for k, v in scripts.items())
         entries.append((f"{dist_info}/entry_points.txt", text.encode()))
-    entries.append((f"{dist_info}/top_level.txt", "".join(p.name + "\n" for p in packages).encode()))
+    entries.append((f"{dist_info}/top_level.txt", "".join(p + "\n" for p in packages).encode()))
     record = "".join(f"{name},{_record_hash(data)},{len(data)}\n" for name, data in entries)
     record += f"{dist_info}/RECORD,,\n"
     entries.append((f"{dist_info}/RECORD", record.encode()))
@@ -601,10 +614,21 @@ def build(dist: Path = DIST_SITE, clean: bool = False) -> SyncReport:
     lock_info = json.loads(extracted[PYODIDE_LOCK].read_text())["info"]
     for f in PYODIDE_FILES:
         plan[f"pyodide/{f}"] = extracted[f]
+    try:
+        stdlib = precompiled_stdlib(extracted[PYODIDE_LOCK].parent, PYODIDE_INTEGRITY, CACHE_DIR, log)
+    except PrecompileError as exc:
+        raise BuildError(str(exc)) from None
+    if stdlib is not None:
+        plan["pyodide/python_stdlib.zip"] = stdlib
 
     plan.update(vendor_npm(VENDOR_NPM))
 
-    wheel_name, wheel = build_wheel()
+    try:
+        pycs = precompiled_package(package_files(), extracted[PYODIDE_LOCK].parent, PYODIDE_INTEGRITY,
+                                   CACHE_DIR, log, stdlib) if stdlib is not None else []
+    except PrecompileError as exc:
+        raise BuildError(str(exc)) from None
+    wheel_name, wheel = build_wheel(extra=pycs)
     wheel_sha = sha256_hex(wheel)
     plan[f"wheels/{wheel_name}"] = wheel
     log(f"wheel {wheel_name} ({len(wheel) / 1e3:.1f} kB, sha256 {wheel_sha[:12]})")
@@ -619,11 +643,19 @@ def build(dist: Path = DIST_SITE, clean: bool = False) -> SyncReport:
         "wheel_url": f"wheels/{wheel_name}?v={wheel_sha[:16]}",
         "pyodide_version": PYODIDE_VERSION,
         "pyodide_lock_info": lock_info,
+        # The npm package's stdlib, compiled to bytecode by its own
+        # interpreter (build_scripts/precompile.py), or as published.
+        "stdlib": "bytecode" if stdlib is not None else "sources",
         "vendor": {pkg: ver for pkg, ver, _, _ in VENDOR_NPM},
     }
     plan["build-info.json"] = (json.dumps(info, indent=2, sort_keys=True) + "\n").encode()
 
     report = sync_tree(dist, plan)
+    try:
+        preloaded = inject_modulepreload(dist)
+    except PreloadError as exc:
+        raise BuildError(str(exc)) from None
+    log(f"modulepreload: {len(preloaded)} modules")
     prerender(dist)
     manifest = inject_precache(dist)  # last: it hashes the files as served
     if manifest:

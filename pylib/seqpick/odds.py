@@ -75,13 +75,14 @@ from __future__ import annotations
 import math
 from bisect import bisect_left
 from dataclasses import dataclass
-from itertools import accumulate, compress, islice, repeat
-from operator import mul, ne, sub, truediv
+from itertools import accumulate, islice, repeat
+from operator import mul, sub, truediv
 from typing import Any, Sequence
 
 from .advise import Advice, SearchState
 from .errors import ScenarioError
-from .results import (Curve, Limit, Outcome, Policy, RuleResult, SolveResult, StageGroup)
+from .results import (Curve, Limit, Outcome, Policy, RuleResult, SolveResult, StageGroup,
+                      group_thresholds)
 from .scenario import ChancesPool, CompareRule, Scenario
 
 __all__ = ["odds_start", "suffix_tables", "evaluate", "optimal_set", "solve_odds",
@@ -349,18 +350,6 @@ def _first_flag(flags: list[int]) -> int:
         return len(flags) + 1
 
 
-def _groups(flags: list[int]) -> list[StageGroup]:
-    """Runs of equal flags as StageGroup(first, last, value), like
-    results.group_thresholds, from the change points (C-level).  O(N)."""
-    n = len(flags)
-    if n == 0:
-        return []
-    cuts = list(compress(range(2, n + 1), map(ne, flags[1:], flags)))
-    starts = [1] + cuts
-    ends = [c - 1 for c in cuts] + [n]
-    return [StageGroup(a, b, flags[a - 1]) for a, b in zip(starts, ends)]
-
-
 def _check_supported(s: Scenario) -> Sequence[float]:
     pool = s.pool
     assert isinstance(pool, ChancesPool)
@@ -391,7 +380,7 @@ def _stage_words(flags: list[int], must: bool,
         before = "stage 1" if first == 2 else f"stages 1 to {first - 1:,}"
         return (f"From stage {first:,} on, make an offer at the first event (pass on "
                 f"{before})." + tail, first - 1)
-    runs = [g for g in _groups(flags) if g.threshold == 1]
+    runs = [g for g in group_thresholds(flags) if g.threshold == 1]
     spans = ", ".join(f"{g.first:,}" if g.first == g.last else f"{g.first:,}-{g.last:,}"
                       for g in runs[:8])
     more = " and later ones (see the table)" if len(runs) > 8 else ""
@@ -491,7 +480,7 @@ def solve_odds(s: Scenario) -> SolveResult:
             words, skip = _stage_words(flags, must, first)
         else:
             value = evaluate(p, flags, q, must, z)
-            groups = _groups(flags)
+            groups = group_thresholds(flags)
             words, skip = _stage_words(flags, must)
     policy = Policy(thresholds=flags, groups=groups, words=words, skip=skip,
                     interval=skip is not None)

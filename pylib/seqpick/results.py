@@ -15,7 +15,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, fields
-from typing import Any
+from functools import partial
+from itertools import compress
+from operator import is_not, ne
+from typing import Any, Sequence
 
 __all__ = [
     "TOP_COUNTS",
@@ -38,6 +41,9 @@ TOP_COUNTS = (1, 2, 3, 5, 10)
 TOP_SHARES = (0.10, 0.25, 0.50)
 
 
+_NUMBERS_OR_NULL = frozenset({int, float, type(None)})
+
+
 def _clean(x: Any) -> Any:
     """Turn dataclasses, tuples and floats into JSON-safe values."""
     if hasattr(x, "__dataclass_fields__"):
@@ -45,11 +51,14 @@ def _clean(x: Any) -> Any:
     if isinstance(x, dict):
         return {str(k): _clean(v) for k, v in x.items()}
     if isinstance(x, (list, tuple)):
-        if x and all(type(v) is int for v in x):
-            return list(x)  # fast path for long per-stage tables
-        if x and all(type(v) is float for v in x) and all(map(math.isfinite, x)):
-            return list(x)  # fast path for long lists of numbers
-        if x and all(type(v) is StageGroup for v in x):
+        kinds = set(map(type, x))  # C-level scan: the fast paths below cost O(len) in C
+        if kinds == {int}:
+            return list(x)  # long per-stage tables
+        if kinds <= _NUMBERS_OR_NULL:
+            if all(map(math.isfinite, filter(partial(is_not, None), x))):
+                return list(x)  # long lists of numbers, with null for "none"
+            return [v if v is None or math.isfinite(v) else None for v in x]
+        if kinds == {StageGroup}:
             return [{"first": g.first, "last": g.last, "threshold": g.threshold} for g in x]
         return [_clean(v) for v in x]
     if isinstance(x, float):
@@ -129,15 +138,20 @@ class StageGroup:
     threshold: int
 
 
-def group_thresholds(thresholds: list[int]) -> list[StageGroup]:
-    """Group per-stage thresholds into runs of equal value.  O(len)."""
-    out: list[StageGroup] = []
-    for i, t in enumerate(thresholds, start=1):
-        if out and out[-1].threshold == t:
-            out[-1].last = i
-        else:
-            out.append(StageGroup(i, i, t))
-    return out
+def group_thresholds(thresholds: Sequence[int]) -> list[StageGroup]:
+    """Group per-stage thresholds into runs of equal value.
+
+    O(len), with the scan for change points done at C level (``compress``
+    over ``map(ne, ...)``): a pool of 10^6 stages groups in milliseconds.
+    """
+    n = len(thresholds)
+    if n == 0:
+        return []
+    t = list(thresholds)
+    cuts = list(compress(range(2, n + 1), map(ne, t[1:], t)))
+    starts = [1] + cuts
+    ends = [c - 1 for c in cuts] + [n]
+    return [StageGroup(a, b, t[a - 1]) for a, b in zip(starts, ends)]
 
 
 @dataclass

@@ -39,7 +39,7 @@
 // 6. <html data-engine="loading|ready|failed" data-engine-ready-at="<ms>">.
 // ---------------------------------------------------------------------------
 
-import { createEngine } from "./engine.js";
+import { engine } from "./engine-start.js";
 import {
   DEMO_SCENARIO,
   buildRequest,
@@ -57,12 +57,11 @@ import { initViews, renderViews } from "./views.js";
 import { setText } from "./plan/dom.js";
 import { initShare, renderShare } from "./share.js";
 import { readPrerendered, resultsAgree } from "./prerendered.js";
-import "./companion/live.js";
 import "./offline.js";
 
 const SOLVE_DELAY_MS = 200;
 
-export const engine = createEngine();
+export { engine };
 const state = stateFromScenario(DEMO_SCENARIO);
 state.engine = { state: "loading", detail: "" };
 
@@ -313,10 +312,28 @@ export function loadScenario(scenario) {
   });
 }
 
+/** The last view chosen is remembered on this device (a reload reopens it). */
+const VIEW_KEY = "seqpick.view.v1";
+const VIEWS = new Set(["plan", "live"]);
+
+function rememberedView() {
+  try {
+    const v = globalThis.localStorage?.getItem(VIEW_KEY);
+    return VIEWS.has(v) ? v : "plan";
+  } catch {
+    return "plan"; // storage blocked: start on the plan
+  }
+}
+
 function showView(name) {
   update((s) => {
     s.view = name;
   }, { solve: false });
+  try {
+    globalThis.localStorage?.setItem(VIEW_KEY, state.view);
+  } catch {
+    // storage full or blocked: the choice lasts until the page is left
+  }
 }
 
 // --- start -----------------------------------------------------------------------------------
@@ -354,11 +371,15 @@ function checkPrerendered() {
 }
 
 /** Markers for tests and the benchmark: <html data-engine="loading|ready|failed"
- *  data-engine-ready-at="<performance.now() when it became ready>">. */
-function markEngine(engineState) {
+ *  data-engine-ready-at="<performance.now() when it became ready>"
+ *  data-engine-phases='{"python": ms, "solver": ms}' (from the worker's start)>. */
+function markEngine(status) {
   const marks = document.documentElement.dataset;
-  if (engineState === "ready" && marks.engine !== "ready") marks.engineReadyAt = String(performance.now());
-  marks.engine = engineState;
+  if (status.state === "ready" && marks.engine !== "ready") {
+    marks.engineReadyAt = String(performance.now());
+    if (status.phases) marks.enginePhases = JSON.stringify(status.phases);
+  }
+  marks.engine = status.state;
 }
 
 buildForm(parts.form, formHandlers);
@@ -370,13 +391,25 @@ initViews({
   onChange: showView,
 });
 initShare({ state, engine, render, loadScenario, parts });
+performance.mark("seqpick:modules-evaluated");
+// A link someone opens shows its plan; a reload, or a visit without a link,
+// reopens the view left last.
+const reloaded = performance.getEntriesByType?.("navigation")[0]?.type === "reload";
+if (reloaded || !state.share.opening) state.view = rememberedView();
 usePrerendered();
 render();
+if (state.result) performance.mark("seqpick:first-answer");
+// The live view loads after the first answer is on screen (it registers
+// itself with views.js, which mounts it at once if it is the current view).
+import("./companion/live.js").catch((err) => {
+  console.error(err);
+  setText($("view-missing"), "The live search could not be loaded. Reload the page to try again; your plan and saved searches are kept.");
+});
 
 engine.onStatus((status) => {
   state.engine = { state: status.state, detail: status.detail ?? "" };
   if (status.state === "failed") state.pending = false;
-  markEngine(status.state);
+  markEngine(status);
   render();
   if (status.state === "ready") {
     solveNow();

@@ -42,12 +42,21 @@ let busy = false;
 let currentId = null; // id of the request Python is running
 const queue = [];
 
+// Milliseconds from the worker's start to the end of each boot phase, sent
+// with the "ready" status (the benchmark reads them): python = Pyodide
+// running, solver = the engine imported.
+const phases = {};
+const markPhase = (name) => {
+  phases[name] = Math.round(performance.now() - T0);
+};
+
 function status(state, detail) {
   self.postMessage({
     type: "status",
     state,
     detail,
     elapsed_ms: Math.round(performance.now() - T0),
+    ...(state === "ready" ? { phases } : {}),
   });
 }
 
@@ -142,6 +151,7 @@ async function boot() {
   }));
   // Fail as soon as any of the three fails, not after Python has started.
   const [pyodide, info, wheel] = await Promise.all([pyodidePromise, infoPromise, wheelPromise]);
+  markPhase("python");
 
   status("loading", "Loading solver");
   const sitePackages = pyodide.runPython(
@@ -157,6 +167,7 @@ async function boot() {
   });
   pyodide.runPython("import importlib; importlib.invalidate_caches()");
   api = pyodide.pyimport(info.api_module || "seqpick.api");
+  markPhase("solver");
   if (typeof api.call !== "function") {
     throw new Error(`${info.api_module} has no function call(command, json)`);
   }
