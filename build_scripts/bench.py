@@ -195,7 +195,7 @@ def browser_table(runs: int) -> None:
     args = ["--host-resolver-rules=MAP * ~NOTFOUND, EXCLUDE 127.0.0.1"]
     if hasattr(os, "geteuid") and os.geteuid() == 0:
         args.append("--no-sandbox")
-    solve_cases = {name: sc for name, sc in variants(10_000).items()}
+    solve_cases = dict(variants(10_000))
     solve_cases["classic (best) N=10⁶"] = {"pool": {"size": 1_000_000}}
     first, live, bare, repeat_visit = [], [], [], []
     phases: list[dict] = []

@@ -305,13 +305,15 @@ def package_files(pylib: Path = PYLIB) -> list[tuple[str, bytes]]:
 
 
 def build_wheel(root: Path = ROOT, pylib: Path = PYLIB,
-                extra: Iterable[tuple[str, bytes]] = ()) -> tuple[str, bytes]:
+                extra: Iterable[tuple[str, bytes]] = (),
+                files: list[tuple[str, bytes]] | None = None) -> tuple[str, bytes]:
     """Build the project's pure-Python wheel in memory: (file name, bytes).
 
     Same sources give the same bytes (sorted entries, fixed timestamps), so
     its sha256 is a content hash. Every package under pylib/ goes in
     (package_files), then *extra* (the bytecode for Pyodide, see
-    precompile.py), then the .dist-info files."""
+    precompile.py), then the .dist-info files. *files* is package_files(pylib)
+    when the caller has read it already."""
     pyproject = tomllib.loads((root / "pyproject.toml").read_text())
     project = pyproject["project"]
     for key in ("name", "version"):
@@ -322,7 +324,7 @@ def build_wheel(root: Path = ROOT, pylib: Path = PYLIB,
     wheel_name = f"{dist_name}-{version}-py3-none-any.whl"
     dist_info = f"{dist_name}-{version}.dist-info"
 
-    entries = package_files(pylib)
+    entries = list(files) if files is not None else package_files(pylib)
     packages = sorted({name.split("/", 1)[0] for name, _ in entries})
     entries += sorted(extra)
 
@@ -623,12 +625,13 @@ def build(dist: Path = DIST_SITE, clean: bool = False) -> SyncReport:
 
     plan.update(vendor_npm(VENDOR_NPM))
 
+    files = package_files()
     try:
-        pycs = precompiled_package(package_files(), extracted[PYODIDE_LOCK].parent, PYODIDE_INTEGRITY,
+        pycs = precompiled_package(files, extracted[PYODIDE_LOCK].parent, PYODIDE_INTEGRITY,
                                    CACHE_DIR, log, stdlib) if stdlib is not None else []
     except PrecompileError as exc:
         raise BuildError(str(exc)) from None
-    wheel_name, wheel = build_wheel(extra=pycs)
+    wheel_name, wheel = build_wheel(extra=pycs, files=files)
     wheel_sha = sha256_hex(wheel)
     plan[f"wheels/{wheel_name}"] = wheel
     log(f"wheel {wheel_name} ({len(wheel) / 1e3:.1f} kB, sha256 {wheel_sha[:12]})")

@@ -733,7 +733,9 @@ def _runs_of(thr: list[int], hi: int) -> list[tuple[int, int, int]]:
     return out
 
 
-def _rule_runs(md: _Model, rl: _Rule, lv: int) -> list[tuple[int, int, int]]:
+def _rule_runs(md: _Model, rl: _Rule | _Plan, lv: int) -> list[tuple[int, int, int]]:
+    """Runs (:func:`_runs_of`) of a rule's or the plan's thresholds at level
+    lv, cached on the object (both keep ``thr`` and ``runs``)."""
     r = rl.runs.get(lv)
     if r is None:
         r = rl.runs[lv] = _runs_of(rl.thr[lv], md.reach)
@@ -1988,12 +1990,8 @@ def _blocks(runs: list[tuple[int, int, int]]) -> list[tuple[int, int]]:
     return out
 
 
-def _plan_runs(md: _Model, plan: _Plan, lv: int) -> list[tuple[int, int, int]]:
-    """Runs (:func:`_runs_of`) of the optimal thresholds at level lv, cached."""
-    r = plan.runs.get(lv)
-    if r is None:
-        r = plan.runs[lv] = _runs_of(plan.thr[lv], md.reach)
-    return r
+#: Runs of the optimal thresholds at a level, cached on the plan.
+_plan_runs = _rule_runs
 
 
 def _level_words(md: _Model, t: list[int], runs: list[tuple[int, int, int]]) -> str:

@@ -29,6 +29,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 import pytest
+from playwright.sync_api import expect
 
 ROOT = Path(__file__).resolve().parents[2]
 SERVE = ROOT / "build_scripts" / "serve.py"
@@ -172,3 +173,11 @@ def page(browser, site_server, page_log, request):
         )
         assert page_log.http_errors == [], f"HTTP errors: {page_log.http_errors}"
         assert page_log.page_errors == [], f"uncaught page errors: {page_log.page_errors}"
+
+
+@pytest.fixture(autouse=True)
+def _patient_expect():
+    """Pyodide takes a few seconds to boot: page assertions wait up to a minute."""
+    expect.set_options(timeout=60_000)
+    yield
+    expect.set_options(timeout=5_000)

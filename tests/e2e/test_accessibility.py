@@ -96,14 +96,6 @@ def check_charts(page, result: dict, where: str) -> None:
         assert page.evaluate(COLOUR_COUNT, [selector, colour]) > 50, f"{where}: {selector} not drawn in {colour}"
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    """Pyodide takes a few seconds to boot: wait up to a minute for the page."""
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 @pytest.fixture(scope="module")
 def axe_source() -> str:
     return build.vendor_for_tests()["axe-core/axe.min.js"].read_text(encoding="utf-8")

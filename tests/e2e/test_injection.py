@@ -26,13 +26,6 @@ PAYLOADS = [
 ALL = " ".join(PAYLOADS)
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 def _no_injection(page):
     assert page.evaluate("window.__pwned === undefined")
     # No element built from a payload: no <img>, <svg onload> or stray <script>.

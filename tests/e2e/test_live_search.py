@@ -31,14 +31,6 @@ TEN = {"version": 1, "title": "Ten applicants for the workshop lead", "pool": {"
        "goal": {"type": "best"}}
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    """Pyodide takes a few seconds to boot: wait up to a minute for the page."""
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 # --- helpers ---------------------------------------------------------------------------
 
 

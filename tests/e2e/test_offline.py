@@ -53,14 +53,6 @@ server.serve_forever()
 """
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    """Pyodide takes a few seconds to boot: wait up to a minute for the page."""
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 class SiteCopy:
     """A copy of dist/site/ served by a subprocess that can be killed."""
 

@@ -15,14 +15,6 @@ ROOT = Path(__file__).resolve().parents[2]
 SITE_JS = ROOT / "site" / "js"
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    """Pyodide takes a few seconds to boot: wait up to a minute for the page."""
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 def cpython(command: str, payload) -> dict:
     from seqpick import api
 

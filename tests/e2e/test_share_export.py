@@ -30,14 +30,6 @@ COMPARISON_HEADER = ["rule", "description", "success_probability", "forced_last"
                      "expected_rank", "expected_score", "expected_interviews", "p_no_hire"]
 
 
-@pytest.fixture(autouse=True)
-def _patient_expect():
-    """Pyodide takes a few seconds to boot: wait up to a minute for the page."""
-    expect.set_options(timeout=60_000)
-    yield
-    expect.set_options(timeout=5_000)
-
-
 # --- helpers ------------------------------------------------------------------------------------
 
 
